@@ -1,0 +1,231 @@
+/**
+ * Micro-benchmark of the engine's graph ops and matmul patch.
+ * Run: npx tsx bench/ops-bench.ts [--quick]
+ *
+ * Reference workload (DESIGN.md "Facts measured"): hidden 32, 16 message-passing
+ * steps, a batch of 32 graphs x 16 nodes (disjoint union, ~4 in-edges per node),
+ * message m = relu(W1 h_src + W2 h_dst + w_e e), sum and max aggregators,
+ * residual update h <- h + A_sum U_s + A_max U_m + b, linear read-out, MSE, Adam.
+ * Reports training steps/s on WASM (patched and stock matmul) and CPU, a dense
+ * layer forward+backward (512x32 @ 32x32) with stock vs patched WASM matmul,
+ * and WASM matmul GFLOP/s on a 256^3 product.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import { initBackend, type BackendName } from '../src/engine/backend.ts';
+import { patchWasmIdentity, unpatchWasmIdentity } from '../src/engine/kernels-identity.ts';
+import { patchWasmMatMul, unpatchWasmMatMul } from '../src/engine/kernels-matmul.ts';
+import { gatherRows, segmentMax, segmentSum } from '../src/model/ops.ts';
+import { Rng } from '../src/util/rng.ts';
+
+const quick = process.argv.includes('--quick');
+const HIDDEN = 32;
+const STEPS = 16;
+const GRAPHS = 32;
+const NODES = 16;
+const DEG = 4;
+
+interface Batch {
+  x: tf.Tensor2D; // [N, 2] node inputs
+  e: tf.Tensor2D; // [E, 1] edge weights
+  src: tf.Tensor1D;
+  dst: tf.Tensor1D;
+  y: tf.Tensor2D; // [N, 1] targets
+  n: number;
+}
+
+function makeBatch(rng: Rng): Batch {
+  const src: number[] = [];
+  const dst: number[] = [];
+  for (let g = 0; g < GRAPHS; g++) {
+    const off = g * NODES;
+    for (let v = 0; v < NODES; v++) {
+      for (let k = 0; k < DEG; k++) {
+        let u = rng.int(0, NODES - 2);
+        if (u >= v) u++;
+        src.push(off + u);
+        dst.push(off + v);
+      }
+    }
+  }
+  const n = GRAPHS * NODES;
+  const E = src.length;
+  const rand = (k: number, lo: number, hi: number) => Array.from({ length: k }, () => rng.uniform(lo, hi));
+  return {
+    x: tf.tensor2d(rand(n * 2, 0, 1), [n, 2]),
+    e: tf.tensor2d(rand(E, 0.1, 1), [E, 1]),
+    src: tf.tensor1d(src, 'int32'),
+    dst: tf.tensor1d(dst, 'int32'),
+    y: tf.tensor2d(rand(n, 0, 3), [n, 1]),
+    n,
+  };
+}
+
+function makeParams(rng: Rng): Record<string, tf.Variable> {
+  const mk = (name: string, shape: [number, number] | [number], scale: number) => {
+    const size = shape.reduce((a, b) => a * b, 1);
+    const init = tf.tensor(Array.from({ length: size }, () => rng.normal() * scale), shape);
+    const v = tf.variable(init, true, name);
+    init.dispose();
+    return v;
+  };
+  const s = 1 / Math.sqrt(HIDDEN);
+  return {
+    enc: mk('enc', [2, HIDDEN], 0.7),
+    w1: mk('w1', [HIDDEN, HIDDEN], s),
+    w2: mk('w2', [HIDDEN, HIDDEN], s),
+    we: mk('we', [1, HIDDEN], 1),
+    us: mk('us', [HIDDEN, HIDDEN], 0.1 * s),
+    um: mk('um', [HIDDEN, HIDDEN], 0.1 * s),
+    ub: mk('ub', [HIDDEN], 0),
+    dec: mk('dec', [HIDDEN, 1], s),
+  };
+}
+
+function forwardLoss(b: Batch, p: Record<string, tf.Variable>): tf.Scalar {
+  let h = tf.matMul(b.x, p.enc) as tf.Tensor2D;
+  const ew = tf.matMul(b.e, p.we) as tf.Tensor2D; // [E, H], same every step
+  for (let s = 0; s < STEPS; s++) {
+    const hs = gatherRows(tf.matMul(h, p.w1) as tf.Tensor2D, b.src);
+    const hd = gatherRows(tf.matMul(h, p.w2) as tf.Tensor2D, b.dst);
+    const m = tf.relu(tf.addN([hs, hd, ew])) as tf.Tensor2D;
+    const aSum = segmentSum(m, b.dst, b.n);
+    const aMax = segmentMax(m, b.dst, b.n);
+    h = tf.addN([h, tf.matMul(aSum, p.us), tf.matMul(aMax, p.um)]) as tf.Tensor2D;
+    h = tf.add(h, p.ub) as tf.Tensor2D;
+  }
+  const out = tf.matMul(h, p.dec);
+  return tf.mean(tf.squaredDifference(out, b.y)) as tf.Scalar;
+}
+
+async function trainSpeed(backend: BackendName, label: string, seconds: number): Promise<{ stepsPerS: number; loss: number; launches: number }> {
+  await initBackend(backend);
+  const rng = new Rng(7);
+  const batch = makeBatch(rng.fork('data'));
+  const params = makeParams(rng.fork('init'));
+  const opt = tf.train.adam(1e-3);
+  const step = () => {
+    const cost = opt.minimize(() => forwardLoss(batch, params), true) as tf.Scalar;
+    const v = cost.dataSync()[0];
+    cost.dispose();
+    return v;
+  };
+  step();
+  step();
+  // Count kernel launches of one step with the profiler.
+  const prof = await tf.profile(() => {
+    const c = opt.minimize(() => forwardLoss(batch, params), true);
+    c?.dispose();
+  });
+  const tensorsBefore = tf.memory().numTensors;
+  let n = 0;
+  let loss = NaN;
+  const t0 = performance.now();
+  while (performance.now() - t0 < seconds * 1000 || n < 2) {
+    loss = step();
+    n++;
+  }
+  const dt = (performance.now() - t0) / 1000;
+  const leaked = tf.memory().numTensors - tensorsBefore;
+  opt.dispose();
+  for (const v of Object.values(params)) v.dispose();
+  for (const t of [batch.x, batch.e, batch.src, batch.dst, batch.y]) t.dispose();
+  console.log(
+    `  ${label.padEnd(28)} ${(n / dt).toFixed(2).padStart(7)} steps/s  (${n} steps in ${dt.toFixed(1)} s, ` +
+      `${prof.kernels.length} kernel launches/step, loss ${loss.toFixed(4)}, leaked tensors ${leaked})`,
+  );
+  return { stepsPerS: n / dt, loss, launches: prof.kernels.length };
+}
+
+function timeIt(f: () => void, minMs: number): number {
+  f();
+  let n = 0;
+  const t0 = performance.now();
+  while (performance.now() - t0 < minMs) {
+    f();
+    n++;
+  }
+  return (performance.now() - t0) / n;
+}
+
+async function denseBench(): Promise<void> {
+  await initBackend('wasm');
+  const rng = new Rng(3);
+  const x = tf.tensor2d(Array.from({ length: 512 * 32 }, () => rng.normal()), [512, 32]);
+  const w = tf.tensor2d(Array.from({ length: 32 * 32 }, () => rng.normal()), [32, 32]);
+  const g = tf.grads((a: tf.Tensor, b: tf.Tensor) => tf.sum(tf.relu(tf.matMul(a, b))));
+  const run = () => tf.tidy(() => {
+    const [dx, dw] = g([x, w]);
+    dx.dataSync();
+    dw.dataSync();
+  });
+  const ms = quick ? 300 : 1500;
+  unpatchWasmMatMul();
+  const stock = timeIt(run, ms);
+  const stockT = timeIt(() => tf.tidy(() => tf.matMul(x, x, true, false).dataSync()), ms / 3);
+  patchWasmMatMul();
+  const patched = timeIt(run, ms);
+  const patchedT = timeIt(() => tf.tidy(() => tf.matMul(x, x, true, false).dataSync()), ms / 3);
+  console.log(`  dense 512x32@32x32 fwd+bwd:  stock ${(stock * 1000).toFixed(0)} us, patched ${(patched * 1000).toFixed(0)} us  (${(stock / patched).toFixed(2)}x)`);
+  console.log(`  x^T·x (32x512 @ 512x32):     stock ${(stockT * 1000).toFixed(0)} us, patched ${(patchedT * 1000).toFixed(0)} us  (${(stockT / patchedT).toFixed(2)}x)`);
+
+  const a = tf.randomNormal([256, 256], 0, 1, 'float32', 1) as tf.Tensor2D;
+  const b = tf.randomNormal([256, 256], 0, 1, 'float32', 2) as tf.Tensor2D;
+  const flops = 2 * 256 ** 3;
+  const mm = timeIt(() => tf.tidy(() => tf.matMul(a, b).dataSync()), ms);
+  const mmT = timeIt(() => tf.tidy(() => tf.matMul(a, b, false, true).dataSync()), ms);
+  unpatchWasmMatMul();
+  const mmTStock = timeIt(() => tf.tidy(() => tf.matMul(a, b, false, true).dataSync()), ms);
+  patchWasmMatMul();
+  console.log(
+    `  matmul 256^3: ${(flops / mm / 1e6).toFixed(1)} GFLOP/s untransposed; a·bᵀ ${(flops / mmT / 1e6).toFixed(1)} GFLOP/s patched, ` +
+      `${(flops / mmTStock / 1e6).toFixed(1)} GFLOP/s stock`,
+  );
+  tf.dispose([x, w, a, b]);
+}
+
+async function opsBench(backend: BackendName): Promise<void> {
+  await initBackend(backend);
+  const rng = new Rng(5);
+  const b = makeBatch(rng);
+  const E = b.src.shape[0];
+  const m = tf.randomNormal([E, HIDDEN], 0, 1, 'float32', 3) as tf.Tensor2D;
+  const h = tf.randomNormal([b.n, HIDDEN], 0, 1, 'float32', 4) as tf.Tensor2D;
+  const ms = quick ? 200 : 600;
+  const t = (f: () => tf.Tensor) => timeIt(() => f().dispose(), ms) * 1000;
+  const gather = t(() => gatherRows(h, b.src));
+  const sum = t(() => segmentSum(m, b.dst, b.n));
+  const max = t(() => segmentMax(m, b.dst, b.n));
+  const add = t(() => tf.add(m, m));
+  console.log(
+    `  ${backend}: per call (E=${E}, C=${HIDDEN}): gatherRows ${gather.toFixed(0)} us, segmentSum ${sum.toFixed(0)} us, ` +
+      `segmentMax ${max.toFixed(0)} us; tf.add same shape ${add.toFixed(0)} us`,
+  );
+  tf.dispose([m, h, b.x, b.e, b.src, b.dst, b.y]);
+}
+
+async function main(): Promise<void> {
+  const secs = quick ? 2 : 6;
+  console.log(`Farfield ops bench (node ${process.version}, tfjs ${tf.version_core})`);
+  console.log(`Reference training step: hidden ${HIDDEN}, ${STEPS} steps, ${GRAPHS} graphs x ${NODES} nodes, ${DEG} in-edges/node, Adam`);
+  const wasm = await trainSpeed('wasm', 'wasm (both patches)', secs);
+  unpatchWasmMatMul();
+  const noMatMul = await trainSpeed('wasm', 'wasm (stock matmul)', secs);
+  unpatchWasmIdentity();
+  const stock = await trainSpeed('wasm', 'wasm (stock matmul+identity)', secs);
+  patchWasmMatMul();
+  const noIdentity = await trainSpeed('wasm', 'wasm (stock identity)', secs);
+  patchWasmIdentity();
+  const cpu = await trainSpeed('cpu', 'cpu', secs);
+  const r = (a: number, b: number) => (a / b).toFixed(2);
+  console.log(
+    `  ratios: wasm/cpu ${r(wasm.stepsPerS, cpu.stepsPerS)}x; both patches/stock ${r(wasm.stepsPerS, stock.stepsPerS)}x; ` +
+      `matmul patch alone ${r(noIdentity.stepsPerS, stock.stepsPerS)}x; identity patch alone ${r(noMatMul.stepsPerS, stock.stepsPerS)}x`,
+  );
+  console.log('Matmul (wasm):');
+  await denseBench();
+  console.log('Graph ops:');
+  await opsBench('wasm');
+  await opsBench('cpu');
+}
+
+await main();

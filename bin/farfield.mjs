@@ -1,0 +1,6 @@
+#!/usr/bin/env node
+// Farfield command line: loads the TypeScript engine through tsx, so it works right after `npm ci`.
+import { register } from 'tsx/esm/api';
+register();
+const { main } = await import('../src/cli/main.ts');
+process.exitCode = await main(process.argv.slice(2));

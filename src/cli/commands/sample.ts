@@ -1,0 +1,38 @@
+import { parse, UsageError, intFlag } from '../main.ts';
+import { sampleGraphs } from '../../tasks/sample.ts';
+import { LIMITS } from '../../experiment/limits.ts';
+
+export async function commandSample(args: string[]): Promise<number> {
+  const { values, positionals } = parse(args, {
+    task: { type: 'string' },
+    family: { type: 'string' },
+    nodes: { type: 'string' },
+    count: { type: 'string' },
+    seed: { type: 'string' },
+    scale: { type: 'string' },
+    weights: { type: 'string' },
+  });
+  if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"`);
+  if (!values.task || !values.family || !values.nodes) throw new UsageError('usage: farfield sample --task ID --family ID --nodes N [--count C] [--seed S] [--scale X] [--weights LO,HI]');
+  const nodes = intFlag('nodes', values.nodes, LIMITS.trainNodes.min, LIMITS.testNodes.max)!;
+  const count = intFlag('count', values.count, 1, 1000) ?? 1;
+  const seed = intFlag('seed', values.seed, 0, 2 ** 31 - 1) ?? 1;
+  let weightScale = 1;
+  if (values.scale !== undefined) {
+    weightScale = Number(values.scale);
+    if (!(weightScale >= LIMITS.weightScale.min && weightScale <= LIMITS.weightScale.max)) {
+      throw new UsageError(`--scale: got "${values.scale}", allowed a number ${LIMITS.weightScale.min}..${LIMITS.weightScale.max}`);
+    }
+  }
+  let weightRange: [number, number] | undefined;
+  if (values.weights !== undefined) {
+    const parts = values.weights.split(',').map(Number);
+    if (parts.length !== 2 || !parts.every((x) => x >= LIMITS.weightBound.min && x <= LIMITS.weightBound.max) || parts[0]! > parts[1]!) {
+      throw new UsageError(`--weights: got "${values.weights}", allowed LO,HI with ${LIMITS.weightBound.min} <= LO <= HI <= ${LIMITS.weightBound.max}`);
+    }
+    weightRange = [parts[0]!, parts[1]!];
+  }
+  const sample = sampleGraphs({ task: values.task, family: values.family, nodes, count, seed, weightScale, weightRange });
+  process.stdout.write(JSON.stringify(sample) + '\n');
+  return 0;
+}

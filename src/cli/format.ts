@@ -1,0 +1,96 @@
+/** Plain-text rendering of results for the terminal. */
+import type { ResultsDocument } from '../experiment/results.ts';
+import type { RungComparison } from '../experiment/compare.ts';
+
+export function num(x: number, digits = 3): string {
+  if (x === null || x === undefined || Number.isNaN(x)) return '—';
+  if (!Number.isFinite(x)) return x > 0 ? '∞' : '−∞';
+  const a = Math.abs(x);
+  if (a !== 0 && (a < 1e-3 || a >= 1e5)) return x.toExponential(2);
+  return Number(x.toPrecision(digits)).toString();
+}
+
+function pad(text: string, width: number): string {
+  const len = [...text].length;
+  return len >= width ? text : text + ' '.repeat(width - len);
+}
+
+export function renderTable(rows: string[][]): string {
+  const widths: number[] = [];
+  for (const row of rows) row.forEach((cell, i) => (widths[i] = Math.max(widths[i] ?? 0, [...cell].length)));
+  return rows.map((row) => row.map((cell, i) => pad(cell, widths[i]! + 2)).join('').trimEnd()).join('\n');
+}
+
+const METRIC_WORDS: Record<string, string> = {
+  mae: 'mean absolute error (lower is better)',
+  mre: 'mean relative error (lower is better)',
+  miss: 'share of nodes outside 5% tolerance (lower is better)',
+};
+
+function rungLabel(r: RungComparison): string {
+  return `${r.size}${r.scale !== 1 ? ` ×${r.scale}` : ''}`;
+}
+
+export function renderResults(doc: ResultsDocument): string {
+  const { spec, comparison } = doc;
+  const lines: string[] = [];
+  lines.push(`Question: ${spec.question}`);
+  lines.push(
+    `Task ${spec.task} · trained on ${spec.train.family} graphs of ${spec.train.sizes[0]}–${spec.train.sizes[1]} nodes · tested on ${spec.test.family ?? spec.train.family} · ${spec.seeds.count} seeds per arm · ${spec.budget.steps} training steps`,
+  );
+  lines.push(`Metric: ${METRIC_WORDS[comparison.metric] ?? comparison.metric}; mean over seeds [95% bootstrap interval]`);
+  lines.push('');
+  const arms = spec.arms.map((a) => a.name);
+  const header = ['size', 'depth', ...arms, 'gap ' + arms.join('/')];
+  const rows: string[][] = [header];
+  for (const rung of comparison.rungs) {
+    rows.push([
+      rungLabel(rung) + (rung.inTrainingRange ? '*' : ''),
+      num(rung.depthMean, 2),
+      ...rung.arms.map((a) => (a.summary.n ? `${num(a.summary.mean)} [${num(a.summary.meanLow)}, ${num(a.summary.meanHigh)}]${a.excluded ? ` (${a.excluded} excl.)` : ''}` : 'no runs')),
+      rung.arms.map((a) => num(a.gap, 2)).join('/'),
+    ]);
+  }
+  lines.push(renderTable(rows));
+  lines.push('* inside the training size range. depth: mean rounds the exact algorithm needs. gap: error ÷ in-distribution error.');
+  lines.push('');
+  const pairRows: string[][] = [['size', 'pair', 'mean diff [95%]', 'P(A<B)', 'signed-rank p', 'verdict']];
+  const caveats = new Map<string, Set<string>>();
+  for (const rung of comparison.rungs) {
+    for (const pair of rung.pairs) {
+      const v = pair.verdict;
+      pairRows.push([
+        rungLabel(rung),
+        `${pair.a} − ${pair.b}`,
+        v.n ? `${num(v.meanDiff.estimate)} [${num(v.meanDiff.low)}, ${num(v.meanDiff.high)}]` : '—',
+        v.n ? num(v.probabilityOfImprovement, 2) : '—',
+        v.n ? num(v.wilcoxon.pTwoSided, 3) : '—',
+        v.text,
+      ]);
+      for (const c of v.caveats) {
+        const key = `${pair.a} vs ${pair.b}`;
+        if (!caveats.has(c)) caveats.set(c, new Set());
+        caveats.get(c)!.add(`${rungLabel(rung)} (${key})`);
+      }
+    }
+  }
+  lines.push(renderTable(pairRows));
+  if (caveats.size) {
+    lines.push('');
+    lines.push('Caveats:');
+    for (const [text, where] of caveats) {
+      const list = [...where];
+      lines.push(`  - ${text}${list.length < comparison.rungs.length * Math.max(1, comparison.rungs[0]?.pairs.length ?? 1) ? ` [${list.join(', ')}]` : ''}`);
+    }
+  }
+  const counts = comparison.statusCounts;
+  const bad = Object.entries(counts).filter(([k]) => k !== 'ok');
+  lines.push('');
+  lines.push(
+    `Runs: ${counts['ok'] ?? 0} ok${bad.length ? ', ' + bad.map(([k, v]) => `${v} ${k}`).join(', ') : ''} of ${doc.runsExpected}` +
+      (bad.length ? ' — excluded runs are listed per arm in the JSON (comparison.rungs[].arms[].excludedReasons)' : ''),
+  );
+  for (const r of doc.runs.filter((x) => x.status !== 'ok')) lines.push(`  ${r.arm} seed ${r.seed}: ${r.status}${r.reason ? ` — ${r.reason}` : ''}`);
+  lines.push(`Spec ${doc.specHash} · fingerprint ${doc.fingerprint} · engine ${doc.engine.version} on ${doc.engine.backend} (${doc.engine.threads} thread${doc.engine.threads === 1 ? '' : 's'} per worker)`);
+  return lines.join('\n');
+}

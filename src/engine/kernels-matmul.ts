@@ -1,0 +1,116 @@
+/**
+ * Faster WASM matmul for training.
+ *
+ * The stock WASM 'BatchMatMul' kernel (tfjs 4.22) hands untransposed inputs to
+ * XNNPACK but runs a scalar triple loop whenever transposeA or transposeB is
+ * set, and every matmul gradient sets one of them (dA = dy·Bᵀ, dB = Aᵀ·dy).
+ * We re-register the kernel so a transposed input is first transposed
+ * explicitly (the WASM 'Transpose' kernel, a cheap copy) and the original
+ * kernel then runs untransposed. '_FusedMatMul' gets the same treatment.
+ *
+ * When it pays: XNNPACK packs the right-hand operand (K x N) afresh for every
+ * new tensor (a fixed ~30 us plus ~10 ns per element here), while the scalar
+ * loop costs ~2.4 ns per multiply-add. Measured on 2 loaded cores with fresh
+ * operands (M = output rows, N = 32): M = 1 or 4 -> the stock loop is faster
+ * (0.2-0.9x); M >= 16 -> transpose-first is 2-14x faster (bench/ops-bench.ts
+ * prints the dense-layer case). So we transpose only when
+ * M * K * N * 2.4 > 30000 + 10 * K * N, and only for batch 1 (batched matmuls
+ * never take the fast path, transposed or not).
+ *
+ * Results: the patched kernel is bit-identical to the stock kernel applied to
+ * explicitly transposed inputs; against the stock *transposed* path it differs
+ * only in float32 summation order (see test/model/ops.test.ts).
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
+
+const PATCHED = Symbol.for('farfield.matmulPatched');
+interface Patched {
+  [PATCHED]?: tf.KernelConfig;
+}
+
+/** Swap the last two axes of `x` with the backend's own Transpose kernel. */
+function transposeLast2(x: tf.TensorInfo, backend: BackendWasm): tf.TensorInfo {
+  const transpose = tf.getKernel('Transpose', 'wasm');
+  const r = x.shape.length;
+  const perm = x.shape.map((_, i) => i);
+  perm[r - 2] = r - 1;
+  perm[r - 1] = r - 2;
+  return transpose.kernelFunc({ inputs: { x }, backend, attrs: { perm } }) as tf.TensorInfo;
+}
+
+function batchOf(shape: number[]): number {
+  let n = 1;
+  for (let i = 0; i < shape.length - 2; i++) n *= shape[i];
+  return n;
+}
+
+/** Cost model from the measurements in the header (times in ns). */
+export function worthTransposing(aShape: number[], bShape: number[], transposeA: boolean, transposeB: boolean): boolean {
+  if (batchOf(aShape) !== 1 || batchOf(bShape) !== 1) return false;
+  const ra = aShape.length;
+  const rb = bShape.length;
+  const M = transposeA ? aShape[ra - 1] : aShape[ra - 2];
+  const K = transposeA ? aShape[ra - 2] : aShape[ra - 1];
+  const N = transposeB ? bShape[rb - 2] : bShape[rb - 1];
+  return M * K * N * 2.4 > 30000 + 10 * K * N;
+}
+
+function wrap(original: tf.KernelConfig): tf.KernelFunc {
+  const f: tf.KernelFunc = (args) => {
+    const attrs = args.attrs ?? {};
+    const transposeA = attrs['transposeA'] === true;
+    const transposeB = attrs['transposeB'] === true;
+    if (!transposeA && !transposeB) return original.kernelFunc(args);
+    const { a, b } = args.inputs as { a: tf.TensorInfo; b: tf.TensorInfo }; // BatchMatMul's declared inputs
+    if (!worthTransposing(a.shape, b.shape, transposeA, transposeB)) return original.kernelFunc(args);
+    // Registered only for 'wasm'.
+    const backend = args.backend as BackendWasm;
+    const temps: tf.TensorInfo[] = [];
+    const a2 = transposeA ? transposeLast2(a, backend) : a;
+    if (transposeA) temps.push(a2);
+    const b2 = transposeB ? transposeLast2(b, backend) : b;
+    if (transposeB) temps.push(b2);
+    try {
+      return original.kernelFunc({
+        inputs: { ...args.inputs, a: a2, b: b2 },
+        backend,
+        attrs: { ...attrs, transposeA: false, transposeB: false },
+      });
+    } finally {
+      for (const t of temps) backend.disposeData(t.dataId);
+    }
+  };
+  (f as Patched)[PATCHED] = original;
+  return f;
+}
+
+const NAMES = ['BatchMatMul', '_FusedMatMul'];
+
+/** Re-register the WASM matmul kernels with the transpose-first path. Idempotent. */
+export function patchWasmMatMul(): void {
+  for (const kernelName of NAMES) {
+    const current = tf.getKernel(kernelName, 'wasm');
+    if (current == null) continue; // the WASM backend module is not loaded yet
+    if ((current.kernelFunc as Patched)[PATCHED] != null) continue;
+    tf.unregisterKernel(kernelName, 'wasm');
+    tf.registerKernel({ ...current, kernelFunc: wrap(current) });
+  }
+}
+
+/** Restore the stock WASM matmul kernels (benchmarks and tests compare both). */
+export function unpatchWasmMatMul(): void {
+  for (const kernelName of NAMES) {
+    const current = tf.getKernel(kernelName, 'wasm');
+    const original = current == null ? undefined : (current.kernelFunc as Patched)[PATCHED];
+    if (original == null) continue;
+    tf.unregisterKernel(kernelName, 'wasm');
+    tf.registerKernel(original);
+  }
+}
+
+/** True if the WASM BatchMatMul kernel is the transpose-first one. */
+export function isWasmMatMulPatched(): boolean {
+  const current = tf.getKernel('BatchMatMul', 'wasm');
+  return current != null && (current.kernelFunc as Patched)[PATCHED] != null;
+}

@@ -1,0 +1,72 @@
+/**
+ * Checks a schema-valid spec against the catalogue: the task and families
+ * exist and fit together, sizes suit the family, per-feature transforms match
+ * the task's inputs, and the total work stays under the caps.
+ */
+import { SpecError, parseSpec, type ExperimentSpec } from './spec.ts';
+import { LIMITS } from './limits.ts';
+import { tasks } from '../tasks/registry.ts';
+import { families } from '../graphs/registry.ts';
+
+export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
+  const problems: string[] = [];
+  const task = tasks[spec.task];
+  if (!task) {
+    problems.push(`task: got ${JSON.stringify(spec.task)}, allowed ${Object.keys(tasks).map((t) => JSON.stringify(t)).join(' | ')}`);
+    throw new SpecError(problems);
+  }
+  const familyField = (field: string, id: string) => {
+    const family = families[id];
+    if (!family) {
+      problems.push(`${field}: got ${JSON.stringify(id)}, allowed ${Object.keys(families).map((f) => JSON.stringify(f)).join(' | ')}`);
+      return null;
+    }
+    if (!task.families.includes(id)) {
+      problems.push(`${field}: task "${task.id}" does not make sense on family "${id}"; allowed ${task.families.map((f) => JSON.stringify(f)).join(' | ')}`);
+      return null;
+    }
+    return family;
+  };
+  const trainFamily = familyField('train.family', spec.train.family);
+  const testFamily = spec.test.family === undefined ? trainFamily : familyField('test.family', spec.test.family);
+  if (trainFamily && spec.train.sizes[0] < trainFamily.minNodes) {
+    problems.push(`train.sizes[0]: got ${spec.train.sizes[0]}, family "${trainFamily.id}" needs at least ${trainFamily.minNodes} nodes`);
+  }
+  if (testFamily) {
+    spec.test.sizes.forEach((size, i) => {
+      if (size < testFamily.minNodes) problems.push(`test.sizes[${i}]: got ${size}, family "${testFamily.id}" needs at least ${testFamily.minNodes} nodes`);
+    });
+  }
+  if (new Set(spec.test.sizes).size !== spec.test.sizes.length) problems.push(`test.sizes: sizes must not repeat (got ${JSON.stringify(spec.test.sizes)})`);
+  if (new Set(spec.test.weightScales).size !== spec.test.weightScales.length) problems.push(`test.weightScales: scales must not repeat`);
+  const names = new Set<string>();
+  spec.arms.forEach((arm, i) => {
+    if (names.has(arm.name)) problems.push(`arms[${i}].name: "${arm.name}" is used by another arm; arm names must be unique`);
+    names.add(arm.name);
+  });
+  const checkTransforms = (field: string, choice: unknown, count: number) => {
+    if (Array.isArray(choice) && choice.length !== count) {
+      problems.push(`${field}: got ${choice.length} transforms, task "${task.id}" has ${count} input feature(s); give one name or exactly ${count}`);
+    }
+  };
+  checkTransforms('model.nodeTransform', spec.model.nodeTransform, task.nodeFeatureNames.length);
+  checkTransforms('model.edgeTransform', spec.model.edgeTransform, task.edgeFeatureNames.length);
+  spec.arms.forEach((arm, i) => {
+    if (arm.model.nodeTransform !== undefined) checkTransforms(`arms[${i}].model.nodeTransform`, arm.model.nodeTransform, task.nodeFeatureNames.length);
+    if (arm.model.edgeTransform !== undefined) checkTransforms(`arms[${i}].model.edgeTransform`, arm.model.edgeTransform, task.edgeFeatureNames.length);
+  });
+  const totalRuns = spec.arms.length * spec.seeds.count;
+  if (totalRuns > LIMITS.totalRuns.max) {
+    problems.push(`seeds.count: ${spec.arms.length} arms × ${spec.seeds.count} seeds = ${totalRuns} runs, allowed at most ${LIMITS.totalRuns.max}`);
+  }
+  if (spec.test.sizes.length * spec.test.weightScales.length > LIMITS.ladderRungs.max) {
+    problems.push(`test: ${spec.test.sizes.length} sizes × ${spec.test.weightScales.length} scales = ${spec.test.sizes.length * spec.test.weightScales.length} rungs, allowed at most ${LIMITS.ladderRungs.max}`);
+  }
+  if (problems.length) throw new SpecError(problems);
+  return spec;
+}
+
+/** Schema, then catalogue: the one entry point for untrusted specs. */
+export function validateSpec(input: unknown): ExperimentSpec {
+  return checkSpec(parseSpec(input));
+}

@@ -1,0 +1,209 @@
+/**
+ * The experiment spec: the one document that defines an experiment. Presets,
+ * share links and result files all carry it. Untrusted input enters only
+ * through `parseSpec`, which validates with a schema and names the field, the
+ * value received and the allowed range on every refusal.
+ */
+import { z } from 'zod';
+import { LIMITS } from './limits.ts';
+
+export const SPEC_VERSION = 1;
+
+export const AGGREGATORS = ['sum', 'mean', 'max', 'min', 'smooth-max', 'smooth-min'] as const;
+export const MESSAGES = ['mlp', 'min-plus', 'max-plus', 'smooth-min-plus', 'smooth-max-plus'] as const;
+export const UPDATES = ['mlp', 'gated', 'aggregate'] as const;
+export const ACTIVATIONS = ['relu', 'leaky-relu'] as const;
+export const TRANSFORMS = ['identity', 'log1p', 'reciprocal', 'inverse-square', 'square', 'sqrt', 'standardize'] as const;
+export const STEP_RULES = ['nodes', 'fixed', 'proportional', 'until-stable'] as const;
+export const METRICS = ['mae', 'mre', 'miss'] as const;
+export const LOSSES = ['huber', 'mse'] as const;
+
+const text = (max: number = LIMITS.textLength.max) => z.string().max(max);
+const int = (min: number, max: number) => z.number().int().min(min).max(max);
+const num = (min: number, max: number) => z.number().min(min).max(max);
+const temperature = num(LIMITS.temperature.min, LIMITS.temperature.max);
+
+const transformList = z.union([z.enum(TRANSFORMS), z.array(z.enum(TRANSFORMS)).min(1).max(8)]);
+
+export const stepRuleSchema = z
+  .object({
+    rule: z.enum(STEP_RULES).default('nodes'),
+    /** `fixed`: the step count. */
+    count: int(1, LIMITS.messageSteps.max).default(16),
+    /** `proportional`: steps = ceil(factor x nodes). */
+    factor: num(0.05, 8).default(1),
+    /** `until-stable`: stop when the largest state change is below tolerance x (1 + largest state). */
+    tolerance: num(1e-8, 1).default(1e-3),
+    /** Upper bound for every rule. */
+    cap: int(1, LIMITS.messageSteps.max).default(256),
+    /** Training only: add a uniform random 0..jitter extra steps per batch, so states stay stable under more steps at test. */
+    trainJitter: int(0, LIMITS.stepJitter.max).default(16),
+  })
+  .strict();
+
+export const modelSchema = z
+  .object({
+    hidden: int(LIMITS.hidden.min, LIMITS.hidden.max).default(32),
+    aggregator: z.enum(AGGREGATORS).default('sum'),
+    /** Temperature for smooth-max / smooth-min aggregation. */
+    aggregatorTemperature: temperature.default(1),
+    /** false: every layer bias-free (the network is then positively homogeneous with relu / leaky-relu). */
+    bias: z.boolean().default(true),
+    activation: z.enum(ACTIVATIONS).default('relu'),
+    message: z.enum(MESSAGES).default('mlp'),
+    messageTemperature: temperature.default(1),
+    update: z.enum(UPDATES).default('mlp'),
+    /** One transform for all node inputs, or one per node input feature. */
+    nodeTransform: transformList.default('identity'),
+    edgeTransform: transformList.default('identity'),
+    steps: stepRuleSchema.default(stepRuleSchema.parse({})),
+  })
+  .strict();
+
+/** Arms override the shared model defaults; only the fields given are changed. */
+export const armSchema = z
+  .object({
+    name: z.string().min(1).max(40).regex(/^[\w .,:=+\-()×]+$/, 'use letters, digits, spaces and . , : = + - ( ) ×'),
+    note: text(400).optional(),
+    model: modelSchema.partial().default({}),
+  })
+  .strict();
+
+const weightRange = z
+  .tuple([num(LIMITS.weightBound.min, LIMITS.weightBound.max), num(LIMITS.weightBound.min, LIMITS.weightBound.max)])
+  .refine(([lo, hi]) => lo <= hi, 'lower bound must not exceed upper bound');
+
+export const specSchema = z
+  .object({
+    farfield: z.literal(SPEC_VERSION),
+    question: text(300).min(1),
+    /** What we expect, honestly stated, and what was held equal between arms. */
+    expectation: text().default(''),
+    task: z.string().min(1).max(40),
+    train: z
+      .object({
+        family: z.string().min(1).max(40),
+        sizes: z
+          .tuple([int(LIMITS.trainNodes.min, LIMITS.trainNodes.max), int(LIMITS.trainNodes.min, LIMITS.trainNodes.max)])
+          .refine(([lo, hi]) => lo <= hi, 'smallest size must not exceed largest'),
+        graphs: int(LIMITS.trainGraphs.min, LIMITS.trainGraphs.max).default(256),
+        weightRange: weightRange.default([1, 10]),
+        familyParams: z.record(z.string().max(40), z.number().finite()).default({}),
+      })
+      .strict(),
+    test: z
+      .object({
+        family: z.string().min(1).max(40).optional(),
+        sizes: z.array(int(LIMITS.testNodes.min, LIMITS.testNodes.max)).min(1).max(LIMITS.ladderRungs.max),
+        weightScales: z.array(num(LIMITS.weightScale.min, LIMITS.weightScale.max)).min(1).max(8).default([1]),
+        graphsPerRung: int(LIMITS.testGraphsPerRung.min, LIMITS.testGraphsPerRung.max).default(16),
+        validationGraphs: int(LIMITS.validationGraphs.min, LIMITS.validationGraphs.max).default(32),
+      })
+      .strict(),
+    budget: z
+      .object({
+        steps: int(LIMITS.trainingSteps.min, LIMITS.trainingSteps.max).default(300),
+        batchGraphs: int(LIMITS.batchGraphs.min, LIMITS.batchGraphs.max).default(16),
+        learningRate: num(LIMITS.learningRate.min, LIMITS.learningRate.max).default(0.003),
+        clipNorm: num(1e-3, 1e6).default(1),
+        loss: z.enum(LOSSES).default('huber'),
+        /** Validate every k steps and keep the best weights (0: never; keep the last). */
+        validateEvery: int(0, LIMITS.trainingSteps.max).default(50),
+      })
+      .strict()
+      .default({ steps: 300, batchGraphs: 16, learningRate: 0.003, clipNorm: 1, loss: 'huber', validateEvery: 50 }),
+    seeds: z
+      .object({
+        count: int(LIMITS.seeds.min, LIMITS.seeds.max).default(5),
+        base: int(0, 2 ** 31 - 1).default(1),
+      })
+      .strict()
+      .default({ count: 5, base: 1 }),
+    metric: z.enum(METRICS).default('mae'),
+    model: modelSchema.default(modelSchema.parse({})),
+    arms: z.array(armSchema).min(LIMITS.arms.min).max(LIMITS.arms.max),
+  })
+  .strict();
+
+export type SpecInput = z.input<typeof specSchema>;
+export type ExperimentSpec = z.output<typeof specSchema>;
+export type ModelOptions = z.output<typeof modelSchema>;
+export type StepRule = z.output<typeof stepRuleSchema>;
+export type ArmSpec = z.output<typeof armSchema>;
+export type AggregatorName = (typeof AGGREGATORS)[number];
+export type MessageName = (typeof MESSAGES)[number];
+export type UpdateName = (typeof UPDATES)[number];
+export type TransformName = (typeof TRANSFORMS)[number];
+export type MetricName = (typeof METRICS)[number];
+
+/** A refusal of untrusted input: every problem names its field. */
+export class SpecError extends Error {
+  constructor(readonly problems: string[]) {
+    super(problems.length === 1 ? problems[0]! : `${problems.length} problems:\n  - ${problems.join('\n  - ')}`);
+    this.name = 'SpecError';
+  }
+}
+
+function fieldName(path: ReadonlyArray<PropertyKey>): string {
+  if (path.length === 0) return '(top level)';
+  return path.map((p, i) => (typeof p === 'number' ? `[${p}]` : `${i === 0 ? '' : '.'}${String(p)}`)).join('');
+}
+
+function valueAt(input: unknown, path: ReadonlyArray<PropertyKey>): unknown {
+  let cursor: unknown = input;
+  for (const key of path) {
+    if (cursor === null || typeof cursor !== 'object') return undefined;
+    cursor = (cursor as Record<PropertyKey, unknown>)[key];
+  }
+  return cursor;
+}
+
+function show(value: unknown): string {
+  if (value === undefined) return 'nothing';
+  let out: string;
+  try {
+    out = JSON.stringify(value) ?? String(value);
+  } catch {
+    out = String(value);
+  }
+  return out.length > 60 ? `${out.slice(0, 57)}...` : out;
+}
+
+function describeIssue(issue: z.core.$ZodIssue, input: unknown): string {
+  const field = fieldName(issue.path);
+  const received = valueAt(input, issue.path);
+  switch (issue.code) {
+    case 'too_big':
+      return `${field}: got ${show(received)}, allowed at most ${String(issue.maximum)}${issue.origin === 'array' ? ' items' : ''}`;
+    case 'too_small':
+      return `${field}: got ${show(received)}, allowed at least ${String(issue.minimum)}${issue.origin === 'array' ? ' items' : ''}`;
+    case 'invalid_value':
+      return `${field}: got ${show(received)}, allowed ${issue.values.map((v) => JSON.stringify(v)).join(' | ')}`;
+    case 'unrecognized_keys':
+      return `${field === '(top level)' ? '' : `${field}: `}unknown field${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')}`;
+    case 'invalid_type':
+      return received === undefined
+        ? `${field}: missing (expected ${issue.expected})`
+        : `${field}: got ${show(received)}, expected ${issue.expected}`;
+    default:
+      return `${field}: ${issue.message} (got ${show(received)})`;
+  }
+}
+
+/** Validate and normalise untrusted input; throws SpecError naming every bad field. */
+export function parseSpec(input: unknown): ExperimentSpec {
+  const result = specSchema.safeParse(input);
+  if (!result.success) {
+    throw new SpecError(result.error.issues.slice(0, 12).map((issue) => describeIssue(issue, input)));
+  }
+  return result.data;
+}
+
+/** The model options of one arm: shared defaults overridden by the arm's own. */
+export function armModel(spec: ExperimentSpec, armIndex: number): ModelOptions {
+  const arm = spec.arms[armIndex];
+  if (!arm) throw new Error(`experiment/spec: arm ${armIndex} is out of range 0..${spec.arms.length - 1}`);
+  const merged = { ...spec.model, ...arm.model };
+  if (arm.model.steps) merged.steps = { ...spec.model.steps, ...arm.model.steps };
+  return merged;
+}

@@ -1,0 +1,217 @@
+/**
+ * The encode–process–decode message-passing network.
+ *
+ *   encode   x̂_v = Dense(x_v)                     h⁰_v = x̂_v
+ *   process  T steps with shared weights:
+ *            message    m_e = message(h_src(e), h_dst(e), ê_e)
+ *            aggregate  a_v = ⊕_{e: dst(e)=v} m_e
+ *            update     h_v ← update(h_v, a_v, x̂_v)
+ *   decode   y_v = Dense(h_v) → one number per node
+ *
+ * Message functions: "mlp"  m = Dense₂(act(W_s h_src + W_d h_dst + W_e ê + b))
+ *   (the first layer is split per operand so node projections happen before the
+ *   per-edge gather, which is cheaper than concatenating per edge);
+ *   semiring kinds  m = gather(semiringDense(h, W), src) + W_e ê (+ b).
+ * Updates: "mlp"  h + Dense₂(act(W_h h + W_a a + W_x x̂ + b)), with Dense₂ starting at
+ *   zero so every step starts as the identity (keeps untrained deep unrolls stable);
+ *   "gated" a GRU cell with input [a, x̂]; "aggregate" h ⊕ a with the arm's aggregator.
+ * With bias off every layer is bias-free and (with relu / leaky-relu, sum/mean/
+ * max/min, hard semirings absent) the whole map is positively homogeneous.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { ModelOptions } from '../experiment/spec.ts';
+import type { Rng } from '../util/rng.ts';
+import { ParamStore } from './params.ts';
+import { getAggregator, type Aggregator } from './aggregators.ts';
+import { semiringDense, type SemiringKind } from './semiring.ts';
+import { gatherRows, segmentCounts } from './ops.ts';
+
+export interface NetworkInputs {
+  nodeX: tf.Tensor2D;
+  edgeX: tf.Tensor2D;
+  src: tf.Tensor1D;
+  dst: tf.Tensor1D;
+  nodes: number;
+}
+
+export interface ForwardOptions {
+  steps: number;
+  /** Keep the decoded output after every step (alignment trace). */
+  trace?: boolean;
+  /** For until-stable: stop when max |Δh| < tolerance · (1 + max |h|). */
+  stopTolerance?: number;
+}
+
+export interface ForwardResult {
+  prediction: tf.Tensor2D;
+  stepsRun: number;
+  /** Decoded outputs after step 1..T (only with trace). */
+  trace: tf.Tensor2D[];
+}
+
+const LEAKY_ALPHA = 0.01;
+
+export class MessagePassingNetwork {
+  readonly params: ParamStore;
+  private readonly aggregator: Aggregator;
+
+  constructor(
+    readonly options: ModelOptions,
+    readonly nodeFeatures: number,
+    readonly edgeFeatures: number,
+    rng: Rng,
+  ) {
+    this.params = new ParamStore(rng);
+    this.aggregator = getAggregator(options.aggregator);
+    const H = options.hidden;
+    const p = this.params;
+    const bias = options.bias;
+    p.add('encode.w', [nodeFeatures, H], 'glorot');
+    if (bias) p.add('encode.b', [H], 'zeros');
+    if (options.message === 'mlp') {
+      p.add('message.ws', [H, H], 'glorot');
+      p.add('message.wd', [H, H], 'glorot');
+      p.add('message.we', [edgeFeatures, H], 'glorot');
+      if (bias) p.add('message.b', [H], 'zeros');
+      p.add('message.w2', [H, H], 'glorot');
+      if (bias) p.add('message.b2', [H], 'zeros');
+    } else {
+      p.add('message.semiring', [H, H], { uniform: [-0.5, 0.5] });
+      p.add('message.we', [edgeFeatures, H], 'glorot');
+      if (bias) p.add('message.b', [H], 'zeros');
+    }
+    if (options.update === 'mlp') {
+      p.add('update.wh', [H, H], 'glorot');
+      p.add('update.wa', [H, H], 'glorot');
+      p.add('update.wx', [H, H], 'glorot');
+      if (bias) p.add('update.b', [H], 'zeros');
+      p.add('update.w2', [H, H], 'zeros');
+      if (bias) p.add('update.b2', [H], 'zeros');
+    } else if (options.update === 'gated') {
+      p.add('update.wzr', [2 * H, 2 * H], 'glorot');
+      p.add('update.uzr', [H, 2 * H], 'glorot');
+      p.add('update.wc', [2 * H, H], 'glorot');
+      p.add('update.uc', [H, H], 'glorot');
+      if (bias) {
+        p.add('update.bzr', [2 * H], 'zeros');
+        p.add('update.bc', [H], 'zeros');
+      }
+    }
+    p.add('decode.w', [H, 1], 'glorot');
+    if (bias) p.add('decode.b', [1], 'zeros');
+  }
+
+  private dense(x: tf.Tensor2D, w: string, b: string | null, activation: 'linear' | 'act' = 'linear'): tf.Tensor2D {
+    const bias = b && this.params.has(b) ? this.params.get(b) : undefined;
+    return this.affine(x, this.params.get(w) as tf.Tensor2D, bias, activation);
+  }
+
+  /**
+   * x·W (+ b), optionally activated. tfjs can differentiate a fused matmul only
+   * with linear or relu activation, so leaky-relu is applied as a separate op.
+   */
+  private affine(x: tf.Tensor2D, w: tf.Tensor2D, bias: tf.Tensor | undefined, activation: 'linear' | 'act'): tf.Tensor2D {
+    const fuseRelu = activation === 'act' && this.options.activation === 'relu';
+    const y = tf.fused.matMul({ a: x, b: w, bias, activation: fuseRelu ? 'relu' : 'linear' }) as tf.Tensor2D;
+    return activation === 'act' && !fuseRelu ? (tf.leakyRelu(y, LEAKY_ALPHA) as tf.Tensor2D) : y;
+  }
+
+  private activate(x: tf.Tensor2D): tf.Tensor2D {
+    return this.options.activation === 'relu' ? tf.relu(x) : tf.leakyRelu(x, LEAKY_ALPHA);
+  }
+
+  encode(nodeX: tf.Tensor2D): tf.Tensor2D {
+    return this.dense(nodeX, 'encode.w', 'encode.b');
+  }
+
+  decode(h: tf.Tensor2D): tf.Tensor2D {
+    return this.dense(h, 'decode.w', 'decode.b');
+  }
+
+  /** Weight concatenations used every step, built once per forward pass. */
+  private joinedWeights(): { message: tf.Tensor2D | null; update: tf.Tensor2D | null } {
+    const p = this.params;
+    return {
+      message: this.options.message === 'mlp' ? (tf.concat([p.get('message.ws'), p.get('message.wd')], 1) as tf.Tensor2D) : null,
+      update: this.options.update === 'mlp' ? (tf.concat([p.get('update.wh'), p.get('update.wa'), p.get('update.wx')], 0) as tf.Tensor2D) : null,
+    };
+  }
+
+  /** Messages for every edge given node states; `edgeTerm` is W_e ê (+ b), constant across steps. */
+  message(h: tf.Tensor2D, edgeTerm: tf.Tensor2D, inputs: NetworkInputs, joined = this.joinedWeights().message): tf.Tensor2D {
+    if (this.options.message === 'mlp') {
+      const projected = tf.matMul(h, joined!);
+      const H = this.options.hidden;
+      const [ps, pd] = tf.split(projected, [H, H], 1) as [tf.Tensor2D, tf.Tensor2D];
+      const pre = tf.add(tf.add(gatherRows(ps, inputs.src), gatherRows(pd, inputs.dst)), edgeTerm) as tf.Tensor2D;
+      return this.dense(this.activate(pre), 'message.w2', 'message.b2');
+    }
+    const senders = semiringDense(h, this.params.get('message.semiring') as tf.Tensor2D, this.options.message as SemiringKind, this.options.messageTemperature);
+    return tf.add(gatherRows(senders, inputs.src), edgeTerm) as tf.Tensor2D;
+  }
+
+  edgeTerm(edgeX: tf.Tensor2D): tf.Tensor2D {
+    return this.dense(edgeX, 'message.we', 'message.b');
+  }
+
+  update(h: tf.Tensor2D, a: tf.Tensor2D, encoded: tf.Tensor2D, hasIncoming: tf.Tensor2D, joinedWeight = this.joinedWeights().update): tf.Tensor2D {
+    const H = this.options.hidden;
+    switch (this.options.update) {
+      case 'mlp': {
+        const joined = tf.concat([h, a, encoded], 1) as tf.Tensor2D;
+        const w = joinedWeight!;
+        const bias = this.params.has('update.b') ? this.params.get('update.b') : undefined;
+        const hidden = this.affine(joined, w, bias, 'act');
+        return tf.add(h, this.dense(hidden, 'update.w2', 'update.b2')) as tf.Tensor2D;
+      }
+      case 'gated': {
+        const input = tf.concat([a, encoded], 1) as tf.Tensor2D;
+        let zr = tf.add(tf.matMul(input, this.params.get('update.wzr') as tf.Tensor2D), tf.matMul(h, this.params.get('update.uzr') as tf.Tensor2D));
+        if (this.params.has('update.bzr')) zr = tf.add(zr, this.params.get('update.bzr'));
+        const gates = tf.sigmoid(zr) as tf.Tensor2D;
+        const [z, r] = tf.split(gates, [H, H], 1) as [tf.Tensor2D, tf.Tensor2D];
+        let c = tf.add(tf.matMul(input, this.params.get('update.wc') as tf.Tensor2D), tf.matMul(tf.mul(r, h) as tf.Tensor2D, this.params.get('update.uc') as tf.Tensor2D));
+        if (this.params.has('update.bc')) c = tf.add(c, this.params.get('update.bc'));
+        const candidate = tf.tanh(c);
+        return tf.add(tf.mul(tf.sub(1, z), h), tf.mul(z, candidate)) as tf.Tensor2D;
+      }
+      case 'aggregate': {
+        const combined = this.aggregator.combine(h, a, this.options.aggregatorTemperature);
+        // Nodes without incoming messages keep their state rather than combining with the empty-result 0.
+        return tf.add(tf.mul(combined, hasIncoming), tf.mul(h, tf.sub(1, hasIncoming))) as tf.Tensor2D;
+      }
+    }
+  }
+
+  /** Run the network. Call inside tf.tidy (or a gradient function); returned tensors are not kept. */
+  forward(inputs: NetworkInputs, options: ForwardOptions): ForwardResult {
+    const counts = segmentCounts(inputs.dst, inputs.nodes);
+    const hasIncoming = tf.minimum(counts, 1) as tf.Tensor2D;
+    const encoded = this.encode(inputs.nodeX);
+    const edgeTerm = this.edgeTerm(inputs.edgeX);
+    let h = encoded;
+    const trace: tf.Tensor2D[] = [];
+    let stepsRun = 0;
+    const joined = this.joinedWeights();
+    for (let t = 0; t < options.steps; t++) {
+      const m = this.message(h, edgeTerm, inputs, joined.message);
+      const a = this.aggregator.aggregate({ messages: m, dst: inputs.dst, nodes: inputs.nodes, hasIncoming, temperature: this.options.aggregatorTemperature });
+      const next = this.update(h, a, encoded, hasIncoming, joined.update);
+      stepsRun++;
+      if (options.trace) trace.push(this.decode(next));
+      if (options.stopTolerance !== undefined) {
+        const change = tf.max(tf.abs(tf.sub(next, h))).dataSync()[0]!;
+        const size = tf.max(tf.abs(next)).dataSync()[0]!;
+        h = next;
+        if (change < options.stopTolerance * (1 + size)) break;
+      } else {
+        h = next;
+      }
+    }
+    return { prediction: this.decode(h), stepsRun, trace };
+  }
+
+  dispose(): void {
+    this.params.dispose();
+  }
+}

@@ -1,0 +1,31 @@
+import * as tf from '@tensorflow/tfjs-core';
+import type { GraphBatch } from './batch.ts';
+import type { NetworkInputs } from '../model/network.ts';
+
+export interface BatchTensors extends NetworkInputs {
+  target: tf.Tensor2D;
+  mask: tf.Tensor2D;
+  dispose(): void;
+}
+
+/** Upload a batch; the caller disposes it. */
+export function uploadBatch(batch: GraphBatch): BatchTensors {
+  const nodeX = tf.tensor2d(batch.nodeX, [batch.nodes, batch.nodeFeatures], 'float32');
+  const edgeX = tf.tensor2d(batch.edgeX, [batch.edges, batch.edgeFeatures], 'float32');
+  const src = tf.tensor1d(batch.src, 'int32');
+  const dst = tf.tensor1d(batch.dst, 'int32');
+  const target = tf.tensor2d(batch.target, [batch.nodes, 1], 'float32');
+  const mask = tf.tensor2d(batch.mask, [batch.nodes, 1], 'float32');
+  return {
+    nodeX,
+    edgeX,
+    src,
+    dst,
+    nodes: batch.nodes,
+    target,
+    mask,
+    dispose() {
+      for (const t of [nodeX, edgeX, src, dst, target, mask]) t.dispose();
+    },
+  };
+}

@@ -1,0 +1,153 @@
+/**
+ * The training loop: disjoint-union batches, Adam, global-norm gradient
+ * clipping, a divergence guard, and best-on-validation weight keeping.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { ExperimentSpec } from '../experiment/spec.ts';
+import type { TaskInstance } from '../tasks/types.ts';
+import type { MessagePassingNetwork } from '../model/network.ts';
+import { trainingStepsFor } from '../model/steps.ts';
+import type { Rng } from '../util/rng.ts';
+import { makeBatch, type FeatureTransforms } from './batch.ts';
+import { uploadBatch } from './tensors.ts';
+import { maskedLoss } from './loss.ts';
+import { evaluateSet } from './evaluate.ts';
+
+export interface TrainProgress {
+  step: number;
+  totalSteps: number;
+  loss: number;
+}
+
+export type TrainStatus = 'ok' | 'diverged';
+
+export interface TrainOutcome {
+  status: TrainStatus;
+  stepsDone: number;
+  /** Loss every `lossEvery` steps (the mean over that window). */
+  lossCurve: number[];
+  lossEvery: number;
+  lastFiniteLoss: number | null;
+  /** For diverged runs: the step at which it was detected and why. */
+  divergedAt?: number;
+  divergedReason?: string;
+  /** Step whose weights were kept (best validation), or the last step. */
+  keptStep: number;
+}
+
+export interface TrainArgs {
+  network: MessagePassingNetwork;
+  train: readonly TaskInstance[];
+  validation: readonly TaskInstance[];
+  transforms: FeatureTransforms;
+  budget: ExperimentSpec['budget'];
+  rng: Rng;
+  onProgress?: (p: TrainProgress) => void;
+  /** Called between steps; return true to stop (cancel). */
+  shouldStop?: () => boolean;
+}
+
+/** Parameters past this magnitude count as an explosion even while the loss is still finite. */
+export const PARAMETER_LIMIT = 1e6;
+
+export function train(args: TrainArgs): TrainOutcome {
+  const { network, budget, rng, transforms } = args;
+  const { steps: totalSteps, batchGraphs, learningRate, clipNorm, loss: lossKind, validateEvery } = budget;
+  const order = rng.fork('batch-order');
+  const stepRng = rng.fork('step-count');
+  const optimizer = tf.train.adam(learningRate);
+  const variables = [...network.params.vars.values()];
+  const lossEvery = Math.max(1, Math.floor(totalSteps / 100));
+  const lossCurve: number[] = [];
+  let windowSum = 0;
+  let windowCount = 0;
+  let lastFiniteLoss: number | null = null;
+  let pool: number[] = [];
+  let best = { value: Infinity, step: 0, weights: null as Map<string, Float32Array> | null };
+  const outcome: TrainOutcome = { status: 'ok', stepsDone: 0, lossCurve, lossEvery, lastFiniteLoss: null, keptStep: 0 };
+
+  const nextBatch = (): TaskInstance[] => {
+    const picked: TaskInstance[] = [];
+    while (picked.length < Math.min(batchGraphs, args.train.length)) {
+      if (pool.length === 0) pool = order.shuffle(args.train.map((_, i) => i));
+      picked.push(args.train[pool.pop()!]!);
+    }
+    return picked;
+  };
+
+  try {
+    for (let step = 1; step <= totalSteps; step++) {
+      if (args.shouldStop?.()) break;
+      const batch = makeBatch(nextBatch(), transforms);
+      const steps = trainingStepsFor(network.options.steps, batch.maxNodes, stepRng);
+      const tensors = uploadBatch(batch);
+      let lossValue: number;
+      let gradNorm: number;
+      try {
+        const result = tf.tidy(() => {
+          const { value, grads } = tf.variableGrads(() => {
+            const { prediction } = network.forward(tensors, {
+              steps,
+              stopTolerance: network.options.steps.rule === 'until-stable' ? network.options.steps.tolerance : undefined,
+            });
+            return maskedLoss(prediction, tensors.target, tensors.mask, lossKind);
+          }, variables);
+          const names = Object.keys(grads);
+          const squares = names.map((n) => tf.sum(tf.square(grads[n]!)));
+          const norm = tf.sqrt(tf.addN(squares));
+          const normValue = norm.dataSync()[0]!;
+          const scale = Number.isFinite(normValue) && normValue > clipNorm ? clipNorm / normValue : 1;
+          if (Number.isFinite(normValue) && Number.isFinite(value.dataSync()[0]!)) {
+            const clipped = names.map((name) => ({ name, tensor: scale === 1 ? grads[name]! : tf.mul(grads[name]!, scale) }));
+            optimizer.applyGradients(clipped);
+          }
+          return { loss: value.dataSync()[0]!, norm: normValue };
+        });
+        lossValue = result.loss;
+        gradNorm = result.norm;
+      } finally {
+        tensors.dispose();
+      }
+      outcome.stepsDone = step;
+      if (!Number.isFinite(lossValue) || !Number.isFinite(gradNorm)) {
+        outcome.status = 'diverged';
+        outcome.divergedAt = step;
+        outcome.divergedReason = !Number.isFinite(lossValue) ? `loss became ${lossValue}` : `gradient norm became ${gradNorm}`;
+        break;
+      }
+      lastFiniteLoss = lossValue;
+      if (step % 25 === 0 || step === totalSteps) {
+        const largest = tf.tidy(() => tf.max(tf.stack(variables.map((v) => tf.max(tf.abs(v))))).dataSync()[0]!);
+        if (!(largest < PARAMETER_LIMIT)) {
+          outcome.status = 'diverged';
+          outcome.divergedAt = step;
+          outcome.divergedReason = `a parameter reached ${largest.toExponential(2)} (limit ${PARAMETER_LIMIT.toExponential(0)})`;
+          break;
+        }
+      }
+      windowSum += lossValue;
+      windowCount++;
+      if (windowCount === lossEvery) {
+        lossCurve.push(windowSum / windowCount);
+        windowSum = 0;
+        windowCount = 0;
+      }
+      args.onProgress?.({ step, totalSteps, loss: lossValue });
+      if (validateEvery > 0 && (step % validateEvery === 0 || step === totalSteps)) {
+        const { metrics } = evaluateSet(network, args.validation, transforms);
+        if (metrics.mae < best.value) {
+          best = { value: metrics.mae, step, weights: network.params.snapshot() };
+        }
+      }
+    }
+  } finally {
+    optimizer.dispose();
+  }
+  outcome.lastFiniteLoss = lastFiniteLoss;
+  outcome.keptStep = outcome.stepsDone;
+  if (outcome.status === 'ok' && best.weights && best.step !== outcome.stepsDone) {
+    network.params.restore(best.weights);
+    outcome.keptStep = best.step;
+  }
+  return outcome;
+}

@@ -1,0 +1,25 @@
+/// <reference types="vitest/config" />
+import { defineConfig } from 'vite';
+
+// Cross-origin isolation lets the WASM backend use threads where the browser allows it.
+const isolation = {
+  'Cross-Origin-Opener-Policy': 'same-origin',
+  'Cross-Origin-Embedder-Policy': 'require-corp',
+};
+
+export default defineConfig({
+  base: './',
+  server: { headers: isolation, host: '127.0.0.1' },
+  preview: { headers: isolation, host: '127.0.0.1' },
+  worker: { format: 'es' },
+  // Excluding the WASM backend from pre-bundling breaks one of its exports.
+  optimizeDeps: { include: ['@tensorflow/tfjs-backend-wasm'] },
+  build: { target: 'es2022', outDir: 'dist', assetsInlineLimit: 0 },
+  test: {
+    include: ['test/**/*.test.ts'],
+    testTimeout: 60_000,
+    hookTimeout: 180_000,
+    pool: 'forks',
+    fileParallelism: true,
+  },
+});

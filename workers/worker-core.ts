@@ -1,0 +1,65 @@
+/**
+ * Host-agnostic worker body: receives messages, runs the engine, posts
+ * progress and results. Adapters for Web Workers and worker_threads only wire
+ * `post` and the message source to this.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { FromWorker, ToWorker } from './protocol.ts';
+import { initBackend } from '../src/engine/backend.ts';
+import { executeRun } from '../src/experiment/run.ts';
+import type { SeedData } from '../src/experiment/datasets.ts';
+
+/** Progress messages at most this often, so posting never slows training. */
+const PROGRESS_INTERVAL_MS = 250;
+
+export function createWorkerCore(post: (message: FromWorker) => void): (message: ToWorker) => Promise<void> {
+  let ready: Promise<unknown> | null = null;
+  // Arms of the same seed share graphs; keep the last spec's data per seed.
+  let cacheKey = '';
+  let dataCache = new Map<number, SeedData>();
+  return async (message: ToWorker) => {
+    try {
+      switch (message.type) {
+        case 'init': {
+          ready = initBackend(message.backend, { threads: message.threads, wasmPaths: message.wasmPaths });
+          const info = (await ready) as { backend: 'wasm' | 'cpu'; threads: number };
+          post({ type: 'ready', backend: info.backend, threads: info.threads });
+          return;
+        }
+        case 'crash': {
+          if (message.how === 'exit') {
+            // Simulates a worker dying without a word.
+            (globalThis as { process?: { exit(code: number): void } }).process?.exit(3);
+            (globalThis as { close?: () => void }).close?.();
+            return;
+          }
+          throw new Error(`deliberate fault injected into run ${message.id}`);
+        }
+        case 'run': {
+          if (!ready) ready = initBackend('wasm');
+          await ready;
+          const key = JSON.stringify(message.spec);
+          if (key !== cacheKey) {
+            cacheKey = key;
+            dataCache = new Map();
+          }
+          let last = 0;
+          const result = executeRun(message.spec, message.plan, {
+            dataCache,
+            onProgress: (p) => {
+              const now = Date.now();
+              if (now - last >= PROGRESS_INTERVAL_MS || p.step === p.totalSteps) {
+                last = now;
+                post({ type: 'progress', id: message.id, step: p.step, totalSteps: p.totalSteps, loss: p.loss });
+              }
+            },
+          });
+          post({ type: 'done', id: message.id, result, tensors: tf.memory().numTensors });
+          return;
+        }
+      }
+    } catch (error) {
+      post({ type: 'error', id: 'id' in message ? message.id : null, message: error instanceof Error ? error.message : String(error) });
+    }
+  };
+}
