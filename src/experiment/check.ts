@@ -10,13 +10,14 @@ import { families } from '../graphs/registry.ts';
 
 export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
   const problems: string[] = [];
-  const task = tasks[spec.task];
+  // Own keys only: a task named "constructor" must not find Object's.
+  const task = Object.hasOwn(tasks, spec.task) ? tasks[spec.task] : undefined;
   if (!task) {
     problems.push(`task: got ${JSON.stringify(spec.task)}, allowed ${Object.keys(tasks).map((t) => JSON.stringify(t)).join(' | ')}`);
     throw new SpecError(problems);
   }
   const familyField = (field: string, id: string) => {
-    const family = families[id];
+    const family = Object.hasOwn(families, id) ? families[id] : undefined;
     if (!family) {
       problems.push(`${field}: got ${JSON.stringify(id)}, allowed ${Object.keys(families).map((f) => JSON.stringify(f)).join(' | ')}`);
       return null;

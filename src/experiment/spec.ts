@@ -60,12 +60,42 @@ export const modelSchema = z
   })
   .strict();
 
+/**
+ * An arm's overrides: the model fields with no defaults, so only what the arm
+ * states changes the shared model (zod fills defaults even inside `.partial()`).
+ */
+export const modelOverrideSchema = z
+  .object({
+    hidden: int(LIMITS.hidden.min, LIMITS.hidden.max).optional(),
+    aggregator: z.enum(AGGREGATORS).optional(),
+    aggregatorTemperature: temperature.optional(),
+    bias: z.boolean().optional(),
+    activation: z.enum(ACTIVATIONS).optional(),
+    message: z.enum(MESSAGES).optional(),
+    messageTemperature: temperature.optional(),
+    update: z.enum(UPDATES).optional(),
+    nodeTransform: transformList.optional(),
+    edgeTransform: transformList.optional(),
+    steps: z
+      .object({
+        rule: z.enum(STEP_RULES).optional(),
+        count: int(1, LIMITS.messageSteps.max).optional(),
+        factor: num(0.05, 8).optional(),
+        tolerance: num(1e-8, 1).optional(),
+        cap: int(1, LIMITS.messageSteps.max).optional(),
+        trainJitter: int(0, LIMITS.stepJitter.max).optional(),
+      })
+      .strict()
+      .optional(),
+  })
+  .strict();
+
 /** Arms override the shared model defaults; only the fields given are changed. */
 export const armSchema = z
   .object({
     name: z.string().min(1).max(40).regex(/^[\w .,:=+\-()×]+$/, 'use letters, digits, spaces and . , : = + - ( ) ×'),
     note: text(400).optional(),
-    model: modelSchema.partial().default({}),
+    model: modelOverrideSchema.default({}),
   })
   .strict();
 
@@ -203,7 +233,11 @@ export function parseSpec(input: unknown): ExperimentSpec {
 export function armModel(spec: ExperimentSpec, armIndex: number): ModelOptions {
   const arm = spec.arms[armIndex];
   if (!arm) throw new Error(`experiment/spec: arm ${armIndex} is out of range 0..${spec.arms.length - 1}`);
-  const merged = { ...spec.model, ...arm.model };
-  if (arm.model.steps) merged.steps = { ...spec.model.steps, ...arm.model.steps };
+  const overrides = Object.fromEntries(Object.entries(arm.model).filter(([, v]) => v !== undefined));
+  const merged: ModelOptions = { ...spec.model, ...overrides, steps: spec.model.steps };
+  if (arm.model.steps) {
+    const stepOverrides = Object.fromEntries(Object.entries(arm.model.steps).filter(([, v]) => v !== undefined));
+    merged.steps = { ...spec.model.steps, ...stepOverrides };
+  }
   return merged;
 }
