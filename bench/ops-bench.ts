@@ -10,6 +10,7 @@
  * layer forward+backward (512x32 @ 32x32) with stock vs patched WASM matmul,
  * and WASM matmul GFLOP/s on a 256^3 product.
  */
+import os from 'node:os';
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend, type BackendName } from '../src/engine/backend.ts';
 import { patchWasmIdentity, unpatchWasmIdentity } from '../src/engine/kernels-identity.ts';
@@ -61,10 +62,10 @@ function makeBatch(rng: Rng): Batch {
 }
 
 function makeParams(rng: Rng): Record<string, tf.Variable> {
-  const mk = (name: string, shape: [number, number] | [number], scale: number) => {
+  const mk = (_name: string, shape: [number, number] | [number], scale: number) => {
     const size = shape.reduce((a, b) => a * b, 1);
     const init = tf.tensor(Array.from({ length: size }, () => rng.normal() * scale), shape);
-    const v = tf.variable(init, true, name);
+    const v = tf.variable(init, true); // unnamed: several trainers coexist
     init.dispose();
     return v;
   };
@@ -97,45 +98,102 @@ function forwardLoss(b: Batch, p: Record<string, tf.Variable>): tf.Scalar {
   return tf.mean(tf.squaredDifference(out, b.y)) as tf.Scalar;
 }
 
-async function trainSpeed(backend: BackendName, label: string, seconds: number): Promise<{ stepsPerS: number; loss: number; launches: number }> {
-  await initBackend(backend);
+interface Variant {
+  label: string;
+  backend: BackendName;
+  matmul: boolean;
+  identity: boolean;
+}
+
+interface Trainer {
+  variant: Variant;
+  step: () => number;
+  steps: number;
+  seconds: number;
+  firstLosses: string;
+  launches: number;
+  dispose: () => void;
+}
+
+function applyPatches(v: Variant): void {
+  if (v.matmul) patchWasmMatMul();
+  else unpatchWasmMatMul();
+  if (v.identity) patchWasmIdentity();
+  else unpatchWasmIdentity();
+}
+
+async function makeTrainer(variant: Variant): Promise<Trainer> {
+  await initBackend(variant.backend);
+  applyPatches(variant);
   const rng = new Rng(7);
   const batch = makeBatch(rng.fork('data'));
   const params = makeParams(rng.fork('init'));
   const opt = tf.train.adam(1e-3);
+  const vars = Object.values(params);
   const step = () => {
-    const cost = opt.minimize(() => forwardLoss(batch, params), true) as tf.Scalar;
+    const cost = opt.minimize(() => forwardLoss(batch, params), true, vars) as tf.Scalar;
     const v = cost.dataSync()[0];
     cost.dispose();
     return v;
   };
-  step();
-  step();
-  // Count kernel launches of one step with the profiler.
+  // Same data, init and step count for every variant: the first losses show
+  // which patches change numerics (hex of the float32 bits).
+  const hex = (v: number) => new Uint32Array(new Float32Array([v]).buffer)[0].toString(16);
+  const firstLosses = [step(), step(), step()].map(hex).join(' ');
   const prof = await tf.profile(() => {
-    const c = opt.minimize(() => forwardLoss(batch, params), true);
+    const c = opt.minimize(() => forwardLoss(batch, params), true, vars);
     c?.dispose();
   });
-  const tensorsBefore = tf.memory().numTensors;
-  let n = 0;
-  let loss = NaN;
-  const t0 = performance.now();
-  while (performance.now() - t0 < seconds * 1000 || n < 2) {
-    loss = step();
-    n++;
-  }
-  const dt = (performance.now() - t0) / 1000;
-  const leaked = tf.memory().numTensors - tensorsBefore;
-  opt.dispose();
-  for (const v of Object.values(params)) v.dispose();
-  for (const t of [batch.x, batch.e, batch.src, batch.dst, batch.y]) t.dispose();
-  console.log(
-    `  ${label.padEnd(28)} ${(n / dt).toFixed(2).padStart(7)} steps/s  (${n} steps in ${dt.toFixed(1)} s, ` +
-      `${prof.kernels.length} kernel launches/step, loss ${loss.toFixed(4)}, leaked tensors ${leaked})`,
-  );
-  return { stepsPerS: n / dt, loss, launches: prof.kernels.length };
+  return {
+    variant,
+    step,
+    steps: 0,
+    seconds: 0,
+    firstLosses,
+    launches: prof.kernels.length,
+    dispose: () => {
+      opt.dispose();
+      for (const v of Object.values(params)) v.dispose();
+      for (const t of [batch.x, batch.e, batch.src, batch.dst, batch.y]) t.dispose();
+    },
+  };
 }
 
+/** Interleave the variants in rounds so load changes on a shared machine hit all of them alike. */
+async function trainSpeeds(variants: Variant[], seconds: number, rounds: number): Promise<Map<string, number>> {
+  const trainers: Trainer[] = [];
+  for (const v of variants) trainers.push(await makeTrainer(v));
+  for (let r = 0; r < rounds; r++) {
+    for (const t of trainers) {
+      await initBackend(t.variant.backend);
+      applyPatches(t.variant);
+      const budget = (seconds * 1000) / rounds;
+      const t0 = performance.now();
+      let n = 0;
+      while (performance.now() - t0 < budget || n < 1) {
+        t.step();
+        n++;
+      }
+      t.steps += n;
+      t.seconds += (performance.now() - t0) / 1000;
+    }
+  }
+  const out = new Map<string, number>();
+  for (const t of trainers) {
+    const sps = t.steps / t.seconds;
+    out.set(t.variant.label, sps);
+    console.log(
+      `  ${t.variant.label.padEnd(30)} ${sps.toFixed(2).padStart(6)} steps/s  (${t.steps} steps in ${t.seconds.toFixed(1)} s, ` +
+        `${t.launches} kernels/step, first losses ${t.firstLosses})`,
+    );
+    await initBackend(t.variant.backend);
+    t.dispose();
+  }
+  applyPatches({ label: '', backend: 'wasm', matmul: true, identity: true });
+  return out;
+}
+
+/** Mean ms per call. Callers never return a TypedArray from tf.tidy (tidy walks it element by element). */
 function timeIt(f: () => void, minMs: number): number {
   f();
   let n = 0;
@@ -161,20 +219,20 @@ async function denseBench(): Promise<void> {
   const ms = quick ? 300 : 1500;
   unpatchWasmMatMul();
   const stock = timeIt(run, ms);
-  const stockT = timeIt(() => tf.tidy(() => tf.matMul(x, x, true, false).dataSync()), ms / 3);
+  const stockT = timeIt(() => tf.tidy(() => void tf.matMul(x, x, true, false).dataSync()), ms / 3);
   patchWasmMatMul();
   const patched = timeIt(run, ms);
-  const patchedT = timeIt(() => tf.tidy(() => tf.matMul(x, x, true, false).dataSync()), ms / 3);
+  const patchedT = timeIt(() => tf.tidy(() => void tf.matMul(x, x, true, false).dataSync()), ms / 3);
   console.log(`  dense 512x32@32x32 fwd+bwd:  stock ${(stock * 1000).toFixed(0)} us, patched ${(patched * 1000).toFixed(0)} us  (${(stock / patched).toFixed(2)}x)`);
   console.log(`  x^T·x (32x512 @ 512x32):     stock ${(stockT * 1000).toFixed(0)} us, patched ${(patchedT * 1000).toFixed(0)} us  (${(stockT / patchedT).toFixed(2)}x)`);
 
   const a = tf.randomNormal([256, 256], 0, 1, 'float32', 1) as tf.Tensor2D;
   const b = tf.randomNormal([256, 256], 0, 1, 'float32', 2) as tf.Tensor2D;
   const flops = 2 * 256 ** 3;
-  const mm = timeIt(() => tf.tidy(() => tf.matMul(a, b).dataSync()), ms);
-  const mmT = timeIt(() => tf.tidy(() => tf.matMul(a, b, false, true).dataSync()), ms);
+  const mm = timeIt(() => tf.tidy(() => void tf.matMul(a, b).dataSync()), ms);
+  const mmT = timeIt(() => tf.tidy(() => void tf.matMul(a, b, false, true).dataSync()), ms);
   unpatchWasmMatMul();
-  const mmTStock = timeIt(() => tf.tidy(() => tf.matMul(a, b, false, true).dataSync()), ms);
+  const mmTStock = timeIt(() => tf.tidy(() => void tf.matMul(a, b, false, true).dataSync()), ms);
   patchWasmMatMul();
   console.log(
     `  matmul 256^3: ${(flops / mm / 1e6).toFixed(1)} GFLOP/s untransposed; a·bᵀ ${(flops / mmT / 1e6).toFixed(1)} GFLOP/s patched, ` +
@@ -204,23 +262,26 @@ async function opsBench(backend: BackendName): Promise<void> {
 }
 
 async function main(): Promise<void> {
-  const secs = quick ? 2 : 6;
+  const secs = quick ? 2 : 8;
   console.log(`Farfield ops bench (node ${process.version}, tfjs ${tf.version_core})`);
   console.log(`Reference training step: hidden ${HIDDEN}, ${STEPS} steps, ${GRAPHS} graphs x ${NODES} nodes, ${DEG} in-edges/node, Adam`);
-  const wasm = await trainSpeed('wasm', 'wasm (both patches)', secs);
-  unpatchWasmMatMul();
-  const noMatMul = await trainSpeed('wasm', 'wasm (stock matmul)', secs);
-  unpatchWasmIdentity();
-  const stock = await trainSpeed('wasm', 'wasm (stock matmul+identity)', secs);
-  patchWasmMatMul();
-  const noIdentity = await trainSpeed('wasm', 'wasm (stock identity)', secs);
-  patchWasmIdentity();
-  const cpu = await trainSpeed('cpu', 'cpu', secs);
+  const load0 = os.loadavg()[0];
+  const variants: Variant[] = [
+    { label: 'wasm (both patches)', backend: 'wasm', matmul: true, identity: true },
+    { label: 'wasm (matmul patch only)', backend: 'wasm', matmul: true, identity: false },
+    { label: 'wasm (identity patch only)', backend: 'wasm', matmul: false, identity: true },
+    { label: 'wasm (stock tfjs kernels)', backend: 'wasm', matmul: false, identity: false },
+    { label: 'cpu', backend: 'cpu', matmul: true, identity: true },
+  ];
+  const sps = await trainSpeeds(variants, secs, quick ? 1 : 3);
+  const g = (label: string) => sps.get(label) ?? NaN;
   const r = (a: number, b: number) => (a / b).toFixed(2);
+  const stock = g('wasm (stock tfjs kernels)');
   console.log(
-    `  ratios: wasm/cpu ${r(wasm.stepsPerS, cpu.stepsPerS)}x; both patches/stock ${r(wasm.stepsPerS, stock.stepsPerS)}x; ` +
-      `matmul patch alone ${r(noIdentity.stepsPerS, stock.stepsPerS)}x; identity patch alone ${r(noMatMul.stepsPerS, stock.stepsPerS)}x`,
+    `  ratios: wasm/cpu ${r(g('wasm (both patches)'), g('cpu'))}x; both patches/stock ${r(g('wasm (both patches)'), stock)}x; ` +
+      `matmul patch alone ${r(g('wasm (matmul patch only)'), stock)}x; identity patch alone ${r(g('wasm (identity patch only)'), stock)}x`,
   );
+  console.log(`  load average (1 min) ${load0.toFixed(1)} -> ${os.loadavg()[0].toFixed(1)} on ${os.cpus().length} cores`);
   console.log('Matmul (wasm):');
   await denseBench();
   console.log('Graph ops:');
@@ -228,4 +289,5 @@ async function main(): Promise<void> {
   await opsBench('cpu');
 }
 
-await main();
+if (process.argv.includes('--matmul-only')) await denseBench();
+else await main();

@@ -54,6 +54,14 @@ export function renderResults(doc: ResultsDocument): string {
   lines.push(renderTable(rows));
   lines.push('* inside the training size range. depth: mean rounds the exact algorithm needs. gap: error ÷ in-distribution error.');
   lines.push('');
+  if (spec.arms.length > 2) {
+    lines.push('Ranking per size (lowest error first; intervals overlap = not separated):');
+    for (const rung of comparison.rungs) {
+      const ordered = rung.ranking.map((name) => rung.arms.find((a) => a.arm === name)!);
+      lines.push(`  ${rungLabel(rung)}: ${ordered.map((a, i) => `${i + 1}. ${a.arm} ${num(a.summary.mean)} [${num(a.summary.meanLow)}, ${num(a.summary.meanHigh)}]`).join('  ')}`);
+    }
+    lines.push('');
+  }
   const pairRows: string[][] = [['size', 'pair', 'mean diff [95%]', 'P(A<B)', 'signed-rank p', 'verdict']];
   const caveats = new Map<string, Set<string>>();
   for (const rung of comparison.rungs) {
@@ -90,7 +98,10 @@ export function renderResults(doc: ResultsDocument): string {
     `Runs: ${counts['ok'] ?? 0} ok${bad.length ? ', ' + bad.map(([k, v]) => `${v} ${k}`).join(', ') : ''} of ${doc.runsExpected}` +
       (bad.length ? ' — excluded runs are listed per arm in the JSON (comparison.rungs[].arms[].excludedReasons)' : ''),
   );
-  for (const r of doc.runs.filter((x) => x.status !== 'ok')) lines.push(`  ${r.arm} seed ${r.seed}: ${r.status}${r.reason ? ` — ${r.reason}` : ''}`);
+  for (const r of doc.runs.filter((x) => x.status !== 'ok')) {
+    const where = r.status === 'diverged' ? ` at step ${r.divergedAt} (last finite loss ${num(r.lastFiniteLoss ?? NaN)})` : '';
+    lines.push(`  ${r.arm} seed ${r.seed}: ${r.status}${where}${r.reason ? ` — ${r.reason}` : ''}`);
+  }
   lines.push(`Spec ${doc.specHash} · fingerprint ${doc.fingerprint} · engine ${doc.engine.version} on ${doc.engine.backend} (${doc.engine.threads} thread${doc.engine.threads === 1 ? '' : 's'} per worker)`);
   return lines.join('\n');
 }

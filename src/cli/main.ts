@@ -4,6 +4,7 @@ import { SpecError } from '../experiment/spec.ts';
 import { commandRun } from './commands/run.ts';
 import { commandCheck } from './commands/check.ts';
 import { commandSample } from './commands/sample.ts';
+import { commandMerge } from './commands/merge.ts';
 
 export class UsageError extends Error {}
 
@@ -17,6 +18,9 @@ Commands:
   sample --task ID --family ID --nodes N [--count C] [--seed S] [--scale X] [--weights LO,HI]
       print generated graphs with their exact targets as JSON
 
+  merge part-1.json part-2.json ... [--out FILE] [--json]
+      combine shard results (run --shard i/N) and recompute the statistics
+
 Exit codes: 0 done, 1 bad input or failed command, 2 usage error.`;
 
 export type Command = (args: string[]) => Promise<number>;
@@ -25,6 +29,7 @@ const COMMANDS: Record<string, Command> = {
   run: commandRun,
   check: commandCheck,
   sample: commandSample,
+  merge: commandMerge,
 };
 
 export async function main(argv: string[]): Promise<number> {

@@ -23,10 +23,15 @@
  * wins over numbers (so a divergence is not hidden). Loops run in a fixed
  * order, so equal inputs give bit-identical outputs.
  *
- * Memory: kernels are plain TS loops over the backend's memory. On WASM every
- * output is allocated (backend.makeOutput) BEFORE any heap view is taken with
- * backend.typedArrayFromHeap, because an allocation can grow the heap and
- * detach earlier views; and nothing allocates on the heap while views are live.
+ * Implementation: plain TS loops over the backend's memory, except that on
+ * WASM gather-rows, segment-sum and the sum inside segment-mean (and its
+ * gradient's gather) call the backend's own C++ GatherNd / ScatterNd, which are
+ * 4-8x faster than a JS loop and give the same bits (a copy; a float32 sum in
+ * edge order). On WASM every output is allocated (backend.makeOutput) BEFORE
+ * any heap view is taken with backend.typedArrayFromHeap, because an
+ * allocation can grow the heap and detach earlier views; views are re-taken
+ * after any call that allocates. On CPU, inputs are read from
+ * backend.data.get(dataId).values and outputs made with makeTensorInfo.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';

@@ -37,6 +37,8 @@ export interface RungComparison {
   inTrainingRange: boolean;
   arms: ArmRung[];
   pairs: PairRung[];
+  /** Arm names from lowest to highest mean error (arms without values last). */
+  ranking: string[];
 }
 
 export interface Comparison {
@@ -152,6 +154,9 @@ export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): C
         inTrainingRange: family === spec.train.family && scale === 1 && size >= spec.train.sizes[0] && size <= spec.train.sizes[1],
         arms,
         pairs,
+        ranking: [...arms]
+          .sort((x, y) => (Number.isNaN(x.summary.mean) ? Infinity : x.summary.mean) - (Number.isNaN(y.summary.mean) ? Infinity : y.summary.mean))
+          .map((x) => x.arm),
       });
     }
   }

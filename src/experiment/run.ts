@@ -125,7 +125,7 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
       train: data.train,
       validation: data.validation,
       transforms,
-      budget: spec.budget,
+      budget: { ...spec.budget, learningRate: spec.arms[plan.armIndex]?.learningRate ?? spec.budget.learningRate },
       rng: root.fork('training'),
       onProgress: hooks.onProgress,
       shouldStop: hooks.shouldStop,

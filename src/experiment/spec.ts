@@ -91,11 +91,27 @@ export const modelOverrideSchema = z
   .strict();
 
 /** Arms override the shared model defaults; only the fields given are changed. */
+/** Model fields a sweep may vary. */
+export const SWEEP_FIELDS = [
+  'hidden',
+  'aggregator',
+  'aggregatorTemperature',
+  'bias',
+  'activation',
+  'message',
+  'messageTemperature',
+  'update',
+  'nodeTransform',
+  'edgeTransform',
+] as const;
+
 export const armSchema = z
   .object({
     name: z.string().min(1).max(40).regex(/^[\w .,:=+\-()×]+$/, 'use letters, digits, spaces and . , : = + - ( ) ×'),
     note: text(400).optional(),
     model: modelOverrideSchema.default({}),
+    /** Overrides budget.learningRate for this arm only (learning-rate studies; deliberately diverging arms in tests). */
+    learningRate: num(LIMITS.learningRate.min, LIMITS.learningRate.max).optional(),
   })
   .strict();
 
@@ -151,7 +167,23 @@ export const specSchema = z
       .default({ count: 5, base: 1 }),
     metric: z.enum(METRICS).default('mae'),
     model: modelSchema.default(modelSchema.parse({})),
-    arms: z.array(armSchema).min(LIMITS.arms.min).max(LIMITS.arms.max),
+    arms: z.array(armSchema).max(LIMITS.arms.max).default([]),
+    /**
+     * One or two model knobs over lists of values, expanded into one arm per
+     * combination (appended after any explicit arms) when the spec is parsed.
+     */
+    sweep: z
+      .array(
+        z
+          .object({
+            field: z.enum(SWEEP_FIELDS),
+            values: z.array(z.union([z.string().max(40), z.number(), z.boolean()])).min(1).max(16),
+          })
+          .strict(),
+      )
+      .min(1)
+      .max(2)
+      .optional(),
   })
   .strict();
 
@@ -220,13 +252,46 @@ function describeIssue(issue: z.core.$ZodIssue, input: unknown): string {
   }
 }
 
+/** Turn a sweep into arms: one per combination of knob values, named "field=value, field=value". */
+function expandSweep(spec: ExperimentSpec, input: unknown): ExperimentSpec {
+  if (!spec.sweep) return spec;
+  const problems: string[] = [];
+  spec.sweep.forEach((knob, k) => {
+    const fieldSchema = modelOverrideSchema.shape[knob.field];
+    knob.values.forEach((value, v) => {
+      const checked = fieldSchema.safeParse(value);
+      if (!checked.success) {
+        problems.push(...checked.error.issues.map((issue) => describeIssue({ ...issue, path: ['sweep', k, 'values', v, ...issue.path] }, input)));
+      }
+    });
+  });
+  if (problems.length) throw new SpecError(problems);
+  let combos: Array<Record<string, unknown>> = [{}];
+  for (const knob of spec.sweep) combos = combos.flatMap((c) => knob.values.map((value) => ({ ...c, [knob.field]: value })));
+  const swept: ArmSpec[] = combos.map((model) => ({
+    name: Object.entries(model)
+      .map(([k, v]) => `${k}=${String(v)}`)
+      .join(', ')
+      .slice(0, 40),
+    model: model as ArmSpec['model'],
+  }));
+  const arms = [...spec.arms, ...swept];
+  if (arms.length > LIMITS.arms.max) throw new SpecError([`sweep: expands to ${arms.length} arms, allowed at most ${LIMITS.arms.max}`]);
+  const { sweep: _expanded, ...rest } = spec;
+  return { ...rest, arms };
+}
+
 /** Validate and normalise untrusted input; throws SpecError naming every bad field. */
 export function parseSpec(input: unknown): ExperimentSpec {
   const result = specSchema.safeParse(input);
   if (!result.success) {
     throw new SpecError(result.error.issues.slice(0, 12).map((issue) => describeIssue(issue, input)));
   }
-  return result.data;
+  const spec = expandSweep(result.data, input);
+  if (spec.arms.length < LIMITS.arms.min) {
+    throw new SpecError([`arms: got ${spec.arms.length} arm(s), allowed at least ${LIMITS.arms.min} (give arms, or a sweep)`]);
+  }
+  return spec;
 }
 
 /** The model options of one arm: shared defaults overridden by the arm's own. */

@@ -1,0 +1,144 @@
+/**
+ * The command line as a user runs it: real child processes of bin/farfield.mjs
+ * with real worker_threads.
+ */
+import { describe, expect, it } from 'vitest';
+import { spawn, spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, readFileSync, statSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = fileURLToPath(new URL('../..', import.meta.url));
+const bin = join(root, 'bin/farfield.mjs');
+const tiny = join(root, 'test/fixtures/tiny.json');
+
+function farfield(...args: string[]) {
+  const r = spawnSync(process.execPath, [bin, ...args], { cwd: root, encoding: 'utf8', timeout: 180_000 });
+  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
+}
+
+interface Doc {
+  specHash: string;
+  fingerprint: string;
+  engine: { backend: string; threads: number; version: string };
+  spec: { question: string };
+  runs: Array<{ arm: string; seed: number; status: string; reason?: string; ladder: Array<{ size: number; metrics: { mae: number } }> }>;
+  comparison: { rungs: Array<{ size: number; pairs: Array<{ verdict: { kind: string } }> }> };
+}
+
+describe('farfield run', () => {
+  const first = farfield('run', tiny, '--json', '--quiet', '--workers', '2');
+  const doc = JSON.parse(first.stdout) as Doc;
+
+  it('prints a results document with the promised fields', () => {
+    expect(first.code).toBe(0);
+    expect(doc.specHash).toMatch(/^[0-9a-f]{16}$/);
+    expect(doc.fingerprint).toMatch(/^[0-9a-f]{12}$/);
+    expect(doc.engine).toMatchObject({ backend: 'wasm', threads: 1 });
+    expect(doc.spec.question).toMatch(/Fixture/);
+    expect(doc.runs).toHaveLength(4);
+    for (const run of doc.runs) {
+      expect(run.status).toBe('ok');
+      expect(run.ladder.map((l) => l.size)).toEqual([8, 12]);
+      expect(run.ladder[0]!.metrics.mae).toBeGreaterThan(0);
+    }
+    expect(doc.comparison.rungs[0]!.pairs[0]!.verdict.kind).toBe('too-few-seeds');
+  });
+
+  it('is deterministic: the same spec gives the same fingerprint, on one worker or two', () => {
+    const again = JSON.parse(farfield('run', tiny, '--json', '--quiet', '--workers', '1').stdout) as Doc;
+    expect(again.fingerprint).toBe(doc.fingerprint);
+    expect(again.runs.map((r) => r.ladder)).toEqual(doc.runs.map((r) => r.ladder));
+  });
+
+  it('shards merge back to the unsharded fingerprint', () => {
+    const dir = mkdtempSync(join(tmpdir(), 'ff-shard-'));
+    for (const i of [1, 2]) expect(farfield('run', tiny, '--shard', `${i}/2`, '--out', join(dir, `part-${i}.json`), '--quiet', '--workers', '1').code).toBe(0);
+    const merged = farfield('merge', join(dir, 'part-1.json'), join(dir, 'part-2.json'), '--json');
+    expect(merged.code).toBe(0);
+    expect((JSON.parse(merged.stdout) as Doc).fingerprint).toBe(doc.fingerprint);
+  });
+
+  it('prints a table with verdicts and the too-few-seeds caveat', () => {
+    const text = farfield('run', tiny, '--quiet', '--workers', '2');
+    expect(text.stdout).toMatch(/size\s+depth\s+max\s+sum/);
+    expect(text.stdout).toMatch(/too few seeds to tell/);
+    expect(text.stdout).toMatch(/smallest possible two-sided signed-rank p is 0\.5; run at least 6 seeds/);
+    expect(text.stdout).toContain(`fingerprint ${doc.fingerprint}`);
+  });
+
+  it('a crashed or throwing worker marks its run failed while the others finish', () => {
+    const r = farfield('run', tiny, '--json', '--quiet', '--workers', '2', '--inject-fault', '1:throw,2:exit');
+    expect(r.code).toBe(0);
+    const d = JSON.parse(r.stdout) as Doc;
+    const byStatus = d.runs.map((x) => x.status);
+    expect(byStatus).toEqual(['ok', 'failed', 'failed', 'ok']);
+    expect(d.runs[1]!.reason).toMatch(/deliberate fault/);
+    expect(d.runs[2]!.reason).toMatch(/exited with code 3/);
+  });
+
+  it('a diverging arm is reported as diverged, with its step, while the other arm completes', () => {
+    const r = farfield('run', join(root, 'test/fixtures/diverging.json'), '--json', '--quiet');
+    const d = JSON.parse(r.stdout) as Doc & { runs: Array<{ divergedAt?: number }> };
+    expect(d.runs.filter((x) => x.arm === 'steady').every((x) => x.status === 'ok')).toBe(true);
+    const reckless = d.runs.filter((x) => x.arm === 'reckless');
+    expect(reckless.every((x) => x.status === 'diverged')).toBe(true);
+    expect(reckless.every((x) => (x.divergedAt ?? 0) > 0)).toBe(true);
+  });
+});
+
+describe('interruption and resume', () => {
+  it('a killed run resumes from its journal and ends with the uninterrupted fingerprint', async () => {
+    const reference = JSON.parse(farfield('run', tiny, '--json', '--quiet', '--workers', '1').stdout) as Doc;
+    const dir = mkdtempSync(join(tmpdir(), 'ff-resume-'));
+    const out = join(dir, 'results.json');
+    const journal = `${out}.journal`;
+    const child = spawn(process.execPath, [bin, 'run', tiny, '--out', out, '--quiet', '--workers', '1'], { cwd: root, stdio: 'ignore' });
+    // Kill it hard once at least one run is durably recorded (header line + one run).
+    const deadline = Date.now() + 120_000;
+    while (Date.now() < deadline) {
+      if (existsSync(journal) && readFileSync(journal, 'utf8').trim().split('\n').length >= 2) break;
+      await new Promise((r) => setTimeout(r, 100));
+    }
+    child.kill('SIGKILL');
+    await new Promise((r) => child.once('exit', r));
+    const kept = readFileSync(journal, 'utf8').trim().split('\n').length - 1;
+    expect(kept).toBeGreaterThanOrEqual(1);
+    expect(kept).toBeLessThan(4);
+    expect(existsSync(out)).toBe(false);
+    const resumed = farfield('run', tiny, '--out', out, '--resume', '--json', '--workers', '1');
+    expect(resumed.stderr).toMatch(/resuming: \d finished run\(s\)/);
+    expect((JSON.parse(resumed.stdout) as Doc).fingerprint).toBe(reference.fingerprint);
+    expect(statSync(out).size).toBeGreaterThan(0);
+  });
+});
+
+describe('farfield check and sample', () => {
+  it('check prints the normalised spec and hash; a bad preset exits 1 naming the field', () => {
+    const ok = farfield('check', tiny);
+    expect(ok.code).toBe(0);
+    expect(ok.stdout).toMatch(/spec hash [0-9a-f]{16}/);
+    const bad = farfield('check', join(root, 'test/fixtures/bad-size.json'));
+    expect(bad.code).toBe(1);
+    expect(bad.stderr).toMatch(/test\.sizes\[0\]: got 9999, allowed at most 512/);
+    expect(bad.stderr).not.toMatch(/\n\s+at /);
+    const missing = farfield('check', join(root, 'test/fixtures/no-such-file.json'));
+    expect(missing.code).toBe(1);
+    expect(missing.stderr).toMatch(/no such file/);
+  });
+
+  it('sample prints graphs with exact targets in the documented shape', () => {
+    const r = farfield('sample', '--task', 'shortest-path', '--family', 'er', '--nodes', '40', '--count', '5', '--seed', '7');
+    expect(r.code).toBe(0);
+    const s = JSON.parse(r.stdout) as { task: string; graphs: Array<{ nodes: number; directed: boolean; edges: number[][]; source: number; target: number[] }> };
+    expect(s.task).toBe('shortest-path');
+    expect(s.graphs).toHaveLength(5);
+    expect(s.graphs[0]!.nodes).toBe(40);
+    expect(s.graphs[0]!.target).toHaveLength(40);
+    expect(s.graphs[0]!.edges[0]).toHaveLength(3);
+    const nonsense = farfield('sample', '--task', 'charge-potential', '--family', 'er', '--nodes', '10');
+    expect(nonsense.code).toBe(1);
+    expect(nonsense.stderr).toMatch(/does not make sense on graph family 'er'/);
+  });
+});
