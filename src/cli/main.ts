@@ -4,6 +4,7 @@ import { SpecError } from '../experiment/spec.ts';
 import { commandRun } from './commands/run.ts';
 import { commandCheck } from './commands/check.ts';
 import { commandSample } from './commands/sample.ts';
+import { commandProbe } from './commands/probe.ts';
 import { commandMerge } from './commands/merge.ts';
 
 export class UsageError extends Error {}
@@ -17,6 +18,8 @@ Commands:
       validate; print the normalised spec and its hash
   sample --task ID --family ID --nodes N [--count C] [--seed S] [--scale X] [--weights LO,HI]
       print generated graphs with their exact targets as JSON
+  probe <preset.json | link> [--json] [--seeds N] [--arms a,b]
+      train each arm on the first seed (or N), print the algebraic audit, learned-vs-true probes and the alignment trace
 
   merge part-1.json part-2.json ... [--out FILE] [--json]
       combine shard results (run --shard i/N) and recompute the statistics
@@ -29,6 +32,7 @@ const COMMANDS: Record<string, Command> = {
   run: commandRun,
   check: commandCheck,
   sample: commandSample,
+  probe: commandProbe,
   merge: commandMerge,
 };
 
