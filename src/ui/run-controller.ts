@@ -1,0 +1,248 @@
+/**
+ * Owns the runs of the spec on the sheet: which are kept from earlier visits,
+ * which are in flight on the worker pool, their live progress, and the
+ * finished results. Components only read `snapshot`; every change calls
+ * `onChange`, and the sheet re-renders.
+ */
+import type { ExperimentSpec } from '../experiment/spec.ts';
+import { planRuns, type RunPlan } from '../experiment/plan.ts';
+import type { RunResult } from '../experiment/run.ts';
+import { specHash } from '../experiment/results.ts';
+import type { ToWorker } from '../../workers/protocol.ts';
+import { runWorkerPool, type FaultKind, type PoolHandle, type PoolWorker } from './worker-pool.ts';
+import type { RunStore } from './run-store.ts';
+
+export type SheetState = 'idle' | 'running' | 'done' | 'cancelled';
+export type RunPhase = 'waiting' | 'running' | 'ok' | 'diverged' | 'failed' | 'cancelled';
+
+export interface RunTrack {
+  plan: RunPlan;
+  phase: RunPhase;
+  /** Read back from storage rather than run in this visit. */
+  kept: boolean;
+  step: number;
+  totalSteps: number;
+  /** Loss samples while training; the recorded loss curve once finished. */
+  losses: number[];
+  startedAt: number | null;
+  finishedAt: number | null;
+  reason?: string;
+}
+
+export interface EngineSummary {
+  backend: string;
+  threads: number;
+}
+
+export interface RunSnapshot {
+  state: SheetState;
+  specHash: string | null;
+  tracks: RunTrack[];
+  /** Finished results for this spec, kept and fresh, sorted by run index. */
+  results: RunResult[];
+  engine: EngineSummary | null;
+  /** Workers in use in the current (or last) session. */
+  workers: number;
+  startedAt: number | null;
+  finishedAt: number | null;
+  keptCount: number;
+  /** False when runs can only be kept in memory (no IndexedDB). */
+  persistent: boolean;
+  /** A storage problem worth telling the user about. */
+  storageNote: string | null;
+}
+
+export interface RunControllerOptions {
+  createWorker: () => PoolWorker;
+  init: Extract<ToWorker, { type: 'init' }>;
+  store: RunStore;
+  faults?: ReadonlyMap<number, FaultKind>;
+  onChange: () => void;
+  now?: () => number;
+}
+
+const MAX_LOSS_SAMPLES = 240;
+
+function trackFor(plan: RunPlan): RunTrack {
+  return { plan, phase: 'waiting', kept: false, step: 0, totalSteps: 0, losses: [], startedAt: null, finishedAt: null };
+}
+
+function finishedTrack(plan: RunPlan, result: RunResult, kept: boolean, now: number | null): RunTrack {
+  return {
+    plan,
+    phase: result.status,
+    kept,
+    step: result.stepsDone,
+    totalSteps: Math.max(result.stepsDone, 1),
+    losses: result.lossCurve.filter((x) => Number.isFinite(x)),
+    startedAt: null,
+    finishedAt: now,
+    ...(result.reason ? { reason: result.reason } : {}),
+  };
+}
+
+export class RunController {
+  snapshot: RunSnapshot;
+  private spec: ExperimentSpec | null = null;
+  private pool: PoolHandle | null = null;
+  private loadToken = 0;
+  private readonly now: () => number;
+
+  constructor(private readonly options: RunControllerOptions) {
+    this.now = options.now ?? (() => Date.now());
+    this.snapshot = {
+      state: 'idle',
+      specHash: null,
+      tracks: [],
+      results: [],
+      engine: null,
+      workers: 0,
+      startedAt: null,
+      finishedAt: null,
+      keptCount: 0,
+      persistent: options.store.persistent,
+      storageNote: options.store.persistent ? null : 'This browser does not keep runs between visits (no IndexedDB); finished runs live until the tab closes.',
+    };
+  }
+
+  get running(): boolean {
+    return this.snapshot.state === 'running';
+  }
+
+  private update(patch: Partial<RunSnapshot>): void {
+    this.snapshot = { ...this.snapshot, ...patch };
+    this.options.onChange();
+  }
+
+  private setTrack(index: number, change: (track: RunTrack) => RunTrack): void {
+    this.update({ tracks: this.snapshot.tracks.map((t) => (t.plan.index === index ? change(t) : t)) });
+  }
+
+  /** Show a spec (or none): its plan, and whatever runs of it were kept. Cancels a session in flight. */
+  async show(spec: ExperimentSpec | null): Promise<void> {
+    if (this.pool) this.cancel();
+    const token = ++this.loadToken;
+    this.spec = spec;
+    if (!spec) {
+      this.update({ state: 'idle', specHash: null, tracks: [], results: [], keptCount: 0, startedAt: null, finishedAt: null });
+      return;
+    }
+    const hash = specHash(spec);
+    const plans = planRuns(spec);
+    this.update({ state: 'idle', specHash: hash, tracks: plans.map(trackFor), results: [], keptCount: 0, startedAt: null, finishedAt: null });
+    let kept: RunResult[] = [];
+    try {
+      kept = await this.options.store.load(hash);
+    } catch (error) {
+      if (token === this.loadToken) this.update({ storageNote: `Could not read kept runs: ${error instanceof Error ? error.message : String(error)}` });
+    }
+    if (token !== this.loadToken) return;
+    const byIndex = new Map(kept.filter((r) => r.index < plans.length && plans[r.index]!.arm === r.arm && plans[r.index]!.seed === r.seed).map((r) => [r.index, r]));
+    const tracks = plans.map((plan) => {
+      const result = byIndex.get(plan.index);
+      return result ? finishedTrack(plan, result, true, null) : trackFor(plan);
+    });
+    const results = [...byIndex.values()].sort((a, b) => a.index - b.index);
+    this.update({
+      tracks,
+      results,
+      keptCount: results.length,
+      state: results.length === plans.length ? 'done' : 'idle',
+    });
+  }
+
+  /** Runs still to do for the spec on the sheet (a failed run counts as not done). */
+  missing(): RunPlan[] {
+    const have = new Set(this.snapshot.results.filter((r) => r.status === 'ok' || r.status === 'diverged').map((r) => r.index));
+    return this.snapshot.tracks.map((t) => t.plan).filter((p) => !have.has(p.index));
+  }
+
+  /** Run the missing runs on `workers` workers. */
+  start(workers: number): void {
+    const spec = this.spec;
+    const hash = this.snapshot.specHash;
+    if (!spec || !hash || this.pool) return;
+    const todo = this.missing();
+    if (todo.length === 0) return;
+    const todoIndex = new Set(todo.map((p) => p.index));
+    // Failed runs from an earlier session are run again: drop their results.
+    const results = this.snapshot.results.filter((r) => !todoIndex.has(r.index));
+    const wanted = Math.max(1, Math.min(workers, todo.length));
+    this.update({
+      state: 'running',
+      results,
+      workers: wanted,
+      startedAt: this.now(),
+      finishedAt: null,
+      tracks: this.snapshot.tracks.map((t) => (todoIndex.has(t.plan.index) ? trackFor(t.plan) : t)),
+    });
+    const pool = runWorkerPool(spec, todo, {
+      workers: wanted,
+      createWorker: this.options.createWorker,
+      init: this.options.init,
+      ...(this.options.faults ? { faults: this.options.faults } : {}),
+      events: {
+        onReady: (info) => {
+          if (this.pool === pool) this.update({ engine: { backend: info.backend, threads: info.threads } });
+        },
+        onStart: (plan) => {
+          if (this.pool !== pool) return;
+          this.setTrack(plan.index, (t) => ({ ...t, phase: 'running', startedAt: this.now(), step: 0, losses: [] }));
+        },
+        onProgress: (plan, step, totalSteps, loss) => {
+          if (this.pool !== pool) return;
+          this.setTrack(plan.index, (t) => {
+            let losses = Number.isFinite(loss) ? [...t.losses, loss] : t.losses;
+            if (losses.length > MAX_LOSS_SAMPLES) losses = losses.filter((_, i) => i % 2 === 0);
+            return { ...t, step, totalSteps, losses };
+          });
+        },
+        onResult: (result) => {
+          if (this.pool !== pool) return;
+          const plan = todo.find((p) => p.index === result.index);
+          if (!plan) return;
+          this.update({
+            results: [...this.snapshot.results.filter((r) => r.index !== result.index), result].sort((a, b) => a.index - b.index),
+            tracks: this.snapshot.tracks.map((t) => (t.plan.index === result.index ? finishedTrack(plan, result, false, this.now()) : t)),
+          });
+          this.options.store.save(hash, result).catch((error: unknown) => {
+            this.update({ storageNote: `Could not keep run ${result.index}: ${error instanceof Error ? error.message : String(error)}` });
+          });
+        },
+      },
+    });
+    this.pool = pool;
+    void pool.done.then(() => {
+      if (this.pool !== pool) return;
+      this.pool = null;
+      const complete = this.snapshot.results.length === this.snapshot.tracks.length;
+      this.update({ state: complete ? 'done' : 'idle', finishedAt: this.now() });
+    });
+  }
+
+  /** Stop now: every worker is terminated; finished runs stay, runs in flight are dropped. */
+  cancel(): void {
+    const pool = this.pool;
+    if (!pool) return;
+    this.pool = null;
+    pool.cancel();
+    this.update({
+      state: 'cancelled',
+      finishedAt: this.now(),
+      tracks: this.snapshot.tracks.map((t) => (t.phase === 'running' ? { ...t, phase: 'cancelled', reason: 'cancelled' } : t)),
+    });
+  }
+
+  /** Drop the kept runs of this spec, so the next run starts from nothing. */
+  async forget(): Promise<void> {
+    const hash = this.snapshot.specHash;
+    if (!hash || this.pool) return;
+    await this.options.store.forget(hash);
+    await this.show(this.spec);
+  }
+
+  dispose(): void {
+    this.pool?.cancel();
+    this.pool = null;
+  }
+}

@@ -1,0 +1,189 @@
+/**
+ * Editing the sheet: pure functions from a draft spec and one edit to the next
+ * draft, and the validation that turns a draft into a runnable spec. The draft
+ * has the spec's shape but may hold values the schema refuses (an empty number
+ * field, a size out of range); `validateDraft` names every such field, and
+ * nothing runs until it passes.
+ */
+import { validateSpec } from '../experiment/check.ts';
+import { SpecError, armModel, type ArmSpec, type ExperimentSpec, type ModelOptions, type StepRule } from '../experiment/spec.ts';
+import { canonicalJson } from '../util/hash.ts';
+import { taskInfo } from './catalogue.ts';
+
+export type Draft = ExperimentSpec;
+export type ArmOverrides = ArmSpec['model'];
+
+/** The model switches an arm card shows; `steps` fields are edited one by one. */
+export const SWITCH_KEYS = [
+  'aggregator',
+  'aggregatorTemperature',
+  'message',
+  'messageTemperature',
+  'update',
+  'activation',
+  'bias',
+  'hidden',
+  'nodeTransform',
+  'edgeTransform',
+] as const;
+export type SwitchKey = (typeof SWITCH_KEYS)[number];
+export const STEP_KEYS = ['rule', 'count', 'factor', 'tolerance', 'cap', 'trainJitter'] as const;
+export type StepKey = (typeof STEP_KEYS)[number];
+
+/** One edit, as a component reports it. */
+export type SpecEdit =
+  | { kind: 'field'; path: ReadonlyArray<string | number>; value: unknown }
+  | { kind: 'task'; task: string }
+  | { kind: 'arm-name'; arm: number; name: string }
+  | { kind: 'arm-note'; arm: number; note: string }
+  | { kind: 'arm-switch'; arm: number; key: SwitchKey; value: unknown }
+  | { kind: 'arm-step'; arm: number; key: StepKey; value: unknown }
+  | { kind: 'arm-add' }
+  | { kind: 'arm-duplicate'; arm: number }
+  | { kind: 'arm-remove'; arm: number };
+
+export type Validation = { ok: true; spec: ExperimentSpec } | { ok: false; problems: string[] };
+
+function clone<T>(value: T): T {
+  return structuredClone(value);
+}
+
+/** Immutable set at a path of object keys and array indices. */
+export function setAt<T>(root: T, path: ReadonlyArray<string | number>, value: unknown): T {
+  if (path.length === 0) return value as T;
+  const [head, ...rest] = path;
+  const container: Record<string | number, unknown> | unknown[] = Array.isArray(root)
+    ? [...(root as unknown[])]
+    : { ...((root ?? {}) as Record<string | number, unknown>) };
+  const current = (container as Record<string | number, unknown>)[head!];
+  (container as Record<string | number, unknown>)[head!] = setAt(current, rest, value);
+  return container as T;
+}
+
+/** A name not used by another arm, within the schema's 40 characters. */
+export function uniqueArmName(wanted: string, taken: readonly string[]): string {
+  const base = wanted.slice(0, 34).trim() || 'arm';
+  if (!taken.includes(base)) return base;
+  for (let i = 2; ; i++) {
+    const name = `${base} ${i}`;
+    if (!taken.includes(name)) return name;
+  }
+}
+
+function withArm(draft: Draft, index: number, change: (arm: ArmSpec) => ArmSpec): Draft {
+  return { ...draft, arms: draft.arms.map((arm, i) => (i === index ? change(arm) : arm)) };
+}
+
+/** A transform override must have one entry per input feature (or be one name). */
+function fitTransforms(draft: Draft): Draft {
+  const task = taskInfo(draft.task);
+  if (!task) return draft;
+  const fit = (choice: unknown, count: number) => (Array.isArray(choice) && choice.length !== count ? (choice[0] as string) : choice);
+  const model = {
+    ...draft.model,
+    nodeTransform: fit(draft.model.nodeTransform, task.nodeFeatures.length) as ModelOptions['nodeTransform'],
+    edgeTransform: fit(draft.model.edgeTransform, task.edgeFeatures.length) as ModelOptions['edgeTransform'],
+  };
+  const arms = draft.arms.map((arm) => {
+    const m: ArmOverrides = { ...arm.model };
+    if (m.nodeTransform !== undefined) m.nodeTransform = fit(m.nodeTransform, task.nodeFeatures.length) as ModelOptions['nodeTransform'];
+    if (m.edgeTransform !== undefined) m.edgeTransform = fit(m.edgeTransform, task.edgeFeatures.length) as ModelOptions['edgeTransform'];
+    return { ...arm, model: m };
+  });
+  return { ...draft, model, arms };
+}
+
+export function applyEdit(draft: Draft, edit: SpecEdit): Draft {
+  switch (edit.kind) {
+    case 'field':
+      return setAt(draft, edit.path, edit.value);
+    case 'task': {
+      const task = taskInfo(edit.task);
+      let next: Draft = { ...draft, task: edit.task };
+      if (task && !task.families.includes(next.train.family)) next = setAt(next, ['train', 'family'], task.families[0]);
+      if (task && next.test.family !== undefined && !task.families.includes(next.test.family)) {
+        const { family: _dropped, ...test } = next.test;
+        next = { ...next, test };
+      }
+      return fitTransforms(next);
+    }
+    case 'arm-name':
+      return withArm(draft, edit.arm, (arm) => ({ ...arm, name: edit.name }));
+    case 'arm-note':
+      return withArm(draft, edit.arm, (arm) => {
+        const { note: _old, ...rest } = arm;
+        return edit.note.trim() ? { ...rest, note: edit.note } : rest;
+      });
+    case 'arm-switch':
+      return withArm(draft, edit.arm, (arm) => ({ ...arm, model: { ...arm.model, [edit.key]: edit.value } }));
+    case 'arm-step':
+      return withArm(draft, edit.arm, (arm) => ({
+        ...arm,
+        model: { ...arm.model, steps: { ...(arm.model.steps ?? {}), [edit.key]: edit.value } },
+      }));
+    case 'arm-add': {
+      const name = uniqueArmName(`arm ${draft.arms.length + 1}`, draft.arms.map((a) => a.name));
+      return { ...draft, arms: [...draft.arms, { name, model: {} }] };
+    }
+    case 'arm-duplicate': {
+      const source = draft.arms[edit.arm];
+      if (!source) return draft;
+      const copy: ArmSpec = { ...clone(source), name: uniqueArmName(`${source.name} copy`, draft.arms.map((a) => a.name)) };
+      const arms = [...draft.arms];
+      arms.splice(edit.arm + 1, 0, copy);
+      return { ...draft, arms };
+    }
+    case 'arm-remove':
+      if (draft.arms.length <= 2) return draft;
+      return { ...draft, arms: draft.arms.filter((_, i) => i !== edit.arm) };
+  }
+}
+
+export function validateDraft(draft: Draft): Validation {
+  try {
+    return { ok: true, spec: validateSpec(draft) };
+  } catch (error) {
+    if (error instanceof SpecError) return { ok: false, problems: error.problems };
+    return { ok: false, problems: [error instanceof Error ? error.message : String(error)] };
+  }
+}
+
+/** Every arm's effective model: the shared model with the arm's overrides. */
+export function effectiveModels(draft: Draft): ModelOptions[] {
+  return draft.arms.map((_, i) => armModel(draft, i));
+}
+
+/** The switches whose effective value is not the same in every arm: the thing under test. */
+export function differingSwitches(models: readonly ModelOptions[]): Set<SwitchKey | `steps.${StepKey}`> {
+  const differ = new Set<SwitchKey | `steps.${StepKey}`>();
+  if (models.length < 2) return differ;
+  for (const key of SWITCH_KEYS) {
+    const first = canonicalJson(models[0]![key]);
+    if (models.some((m) => canonicalJson(m[key]) !== first)) differ.add(key);
+  }
+  for (const key of STEP_KEYS) {
+    const first = models[0]!.steps[key];
+    if (models.some((m) => m.steps[key] !== first)) differ.add(`steps.${key}`);
+  }
+  return differ;
+}
+
+/** Loose text → list of numbers ("16, 32 64" → [16, 32, 64]); NaN marks a bad entry so validation names it. */
+export function parseNumberList(text: string): number[] {
+  return text
+    .split(/[\s,;]+/)
+    .filter((part) => part.length > 0)
+    .map((part) => (/^[+-]?(\d+\.?\d*|\.\d+)(e[+-]?\d+)?$/i.test(part) ? Number(part) : NaN));
+}
+
+/** A number field's text → number (empty or junk → NaN, which validation names). */
+export function parseNumber(text: string): number {
+  const trimmed = text.trim();
+  return trimmed === '' ? NaN : Number(trimmed);
+}
+
+export function sameSpec(a: ExperimentSpec, b: ExperimentSpec): boolean {
+  return canonicalJson(a) === canonicalJson(b);
+}
+
+export type { StepRule };
