@@ -48,7 +48,7 @@ function clone<T>(value: T): T {
   return structuredClone(value);
 }
 
-/** Immutable set at a path of object keys and array indices. */
+/** Immutable set at a path of object keys and array indices; `undefined` removes an object field. */
 export function setAt<T>(root: T, path: ReadonlyArray<string | number>, value: unknown): T {
   if (path.length === 0) return value as T;
   const [head, ...rest] = path;
@@ -56,7 +56,10 @@ export function setAt<T>(root: T, path: ReadonlyArray<string | number>, value: u
     ? [...(root as unknown[])]
     : { ...((root ?? {}) as Record<string | number, unknown>) };
   const current = (container as Record<string | number, unknown>)[head!];
-  (container as Record<string | number, unknown>)[head!] = setAt(current, rest, value);
+  const next = setAt(current, rest, value);
+  // Setting an object field to undefined removes it (an optional field left out).
+  if (next === undefined && !Array.isArray(container)) delete (container as Record<string | number, unknown>)[head!];
+  else (container as Record<string | number, unknown>)[head!] = next;
   return container as T;
 }
 
@@ -187,3 +190,65 @@ export function sameSpec(a: ExperimentSpec, b: ExperimentSpec): boolean {
 }
 
 export type { StepRule };
+
+/** The spec fields the problems name ("train.sizes[0]: got …" → "train.sizes[0]"), to mark those inputs. */
+export function problemFields(problems: readonly string[]): Set<string> {
+  const fields = new Set<string>();
+  for (const problem of problems) {
+    const match = /^([A-Za-z_$][\w$]*(?:\.[A-Za-z_$][\w$]*|\[\d+\])*): /.exec(problem);
+    if (!match) continue;
+    fields.add(match[1]!);
+    // "test.sizes[2]" also marks the whole list input "test.sizes".
+    fields.add(match[1]!.replace(/\[\d+\]$/, ''));
+  }
+  return fields;
+}
+
+/** "arms[1].model.steps.count" style field name for a path. */
+export function fieldName(path: ReadonlyArray<string | number>): string {
+  return path.map((p, i) => (typeof p === 'number' ? `[${p}]` : `${i === 0 ? '' : '.'}${p}`)).join('');
+}
+
+/** What an arm card shows: the arm's effective model, what it sets itself, and what differs between arms. */
+export interface ArmCardView {
+  index: number;
+  letter: string;
+  name: string;
+  note: string;
+  color: string;
+  model: ModelOptions;
+  /** Switches the arm sets itself (the rest come from the shared model). */
+  overridden: Set<string>;
+  /** Switches whose value is not the same in every arm. */
+  differs: Set<string>;
+  nodeFeatures: string[];
+  edgeFeatures: string[];
+  canRemove: boolean;
+}
+
+export function armLetter(index: number): string {
+  return index < 26 ? String.fromCharCode(65 + index) : `A${index - 25}`;
+}
+
+export function armCards(draft: Draft, colorOf: (index: number) => string): ArmCardView[] {
+  const task = taskInfo(draft.task);
+  const models = effectiveModels(draft);
+  const differs = differingSwitches(models) as Set<string>;
+  return draft.arms.map((arm, index) => {
+    const overridden = new Set<string>(Object.entries(arm.model).filter(([k, v]) => v !== undefined && k !== 'steps').map(([k]) => k));
+    for (const [k, v] of Object.entries(arm.model.steps ?? {})) if (v !== undefined) overridden.add(`steps.${k}`);
+    return {
+      index,
+      letter: armLetter(index),
+      name: arm.name,
+      note: arm.note ?? '',
+      color: colorOf(index),
+      model: models[index]!,
+      overridden,
+      differs,
+      nodeFeatures: task?.nodeFeatures ?? ['node input'],
+      edgeFeatures: task?.edgeFeatures ?? ['edge input'],
+      canRemove: draft.arms.length > 2,
+    };
+  });
+}

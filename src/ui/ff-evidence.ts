@@ -1,0 +1,264 @@
+/**
+ * <ff-evidence>: the answer so far, the figures (extrapolation curves, paired
+ * differences, per-seed errors), the verdict table with its caveats, and a
+ * marked place for probes. Figures are drawn by src/ui/plots.ts from the
+ * evidence rows; this element only decides their width.
+ */
+import { LitElement, css, html, nothing, type PropertyValues } from 'lit';
+import type { EvidenceView } from './evidence.ts';
+import { differenceFigure, extrapolationFigure, seedFigure } from './plots.ts';
+import { num } from './format.ts';
+import { controls } from './styles.ts';
+import './ff-figure.ts';
+import './ff-verdict-table.ts';
+
+export class FfEvidence extends LitElement {
+  static override properties = {
+    evidence: { attribute: false },
+    presenter: { type: Boolean },
+    width: { state: true },
+    logY: { state: true },
+  };
+  declare evidence: EvidenceView | null;
+  declare presenter: boolean;
+  declare width: number;
+  declare logY: boolean;
+
+  private figures: { curves: Element | null; diffs: Element | null; seeds: Element | null } = { curves: null, diffs: null, seeds: null };
+  private resize: ResizeObserver | null = null;
+
+  static override styles = [
+    controls,
+    css`
+      :host {
+        display: block;
+      }
+      .empty {
+        padding: 1.4em 1.2em;
+        border: 2px dashed var(--rule);
+        border-radius: 4px;
+        color: var(--muted);
+        font-size: 1.02em;
+        line-height: 1.5;
+      }
+      .answer {
+        display: grid;
+        grid-template-columns: auto 1fr;
+        gap: 0.1em 0.8em;
+        align-items: baseline;
+        margin: 0 0 1em;
+        padding: 0.8em 1em;
+        background: var(--ink);
+        color: var(--paper);
+        border-radius: 4px;
+      }
+      .answer .a {
+        font-family: var(--serif);
+        font-size: 2.1em;
+        font-weight: 700;
+        color: #e9c46a;
+        line-height: 1;
+        grid-row: span 2;
+      }
+      .answer .text {
+        font-family: var(--serif);
+        font-size: 1.45em;
+        font-weight: 600;
+      }
+      .answer .sub {
+        font-size: 0.95em;
+        opacity: 0.85;
+      }
+      .answer[data-kind='too-few-seeds'] .text {
+        color: #f3d28b;
+      }
+      .legend {
+        display: flex;
+        flex-wrap: wrap;
+        gap: 0.4em 1.2em;
+        align-items: center;
+        margin: 0 0 0.7em;
+        font-size: 0.95em;
+      }
+      .key {
+        display: inline-flex;
+        align-items: center;
+        gap: 0.4em;
+        font-weight: 600;
+      }
+      .swatch {
+        width: 1.6em;
+        height: 0.35em;
+        border-radius: 2px;
+        background: var(--c);
+      }
+      .legend .train {
+        display: inline-flex;
+        align-items: center;
+        gap: 0.4em;
+        color: var(--muted);
+      }
+      .legend .train i {
+        width: 1.2em;
+        height: 0.9em;
+        background: #e3d8bf;
+        display: inline-block;
+      }
+      .legend label {
+        margin-left: auto;
+        display: inline-flex;
+        gap: 0.35em;
+        align-items: center;
+        font-size: 0.92em;
+      }
+      .figs {
+        display: grid;
+        gap: 1em;
+      }
+      .pair {
+        display: grid;
+        grid-template-columns: 1fr 1fr;
+        gap: 1em;
+      }
+      @media (max-width: 1000px) {
+        .pair {
+          grid-template-columns: 1fr;
+        }
+      }
+      .partial {
+        color: var(--ochre);
+        font-size: 0.92em;
+        margin: 0 0 0.6em;
+      }
+      #probes {
+        margin-top: 1.2em;
+        padding: 0.8em 1em;
+        border: 1px dashed var(--rule);
+        border-radius: 4px;
+      }
+      #probes h3 {
+        margin: 0 0 0.2em;
+        font-family: var(--serif);
+        font-size: 1.05em;
+      }
+      #probes p {
+        margin: 0;
+        color: var(--muted);
+        font-size: 0.9em;
+      }
+    `,
+  ];
+
+  constructor() {
+    super();
+    this.evidence = null;
+    this.presenter = false;
+    this.width = 1000;
+    this.logY = false;
+  }
+
+  override connectedCallback(): void {
+    super.connectedCallback();
+    this.resize = new ResizeObserver((entries) => {
+      const w = Math.round(entries[0]?.contentRect.width ?? 0);
+      // Redraw only on real changes (a scrollbar appearing is not one).
+      if (w > 0 && Math.abs(w - this.width) > 24) this.width = w;
+    });
+    this.resize.observe(this);
+  }
+
+  override disconnectedCallback(): void {
+    this.resize?.disconnect();
+    this.resize = null;
+    super.disconnectedCallback();
+  }
+
+  protected override willUpdate(changed: PropertyValues<this>): void {
+    if (changed.has('evidence') || changed.has('width') || changed.has('logY') || changed.has('presenter')) {
+      const view = this.evidence;
+      if (!view || view.curves.length === 0) {
+        this.figures = { curves: null, diffs: null, seeds: null };
+        return;
+      }
+      const full = Math.max(420, Math.min(this.width, 1400) - 34);
+      const half = this.width > 1000 ? Math.max(380, Math.floor((this.width - 16) / 2) - 34) : full;
+      this.figures = {
+        curves: extrapolationFigure(view, { width: full, logY: this.logY }),
+        diffs: view.diffs.length ? differenceFigure(view, { width: half }) : null,
+        seeds: seedFigure(view, { width: half, logY: this.logY }),
+      };
+    }
+  }
+
+  override render() {
+    const v = this.evidence;
+    if (!v || v.curves.length === 0) {
+      return html`<div class="empty" data-empty>
+          No evidence yet. Press <strong>Run</strong>: as each run finishes, its errors on the ladder appear here — curves with 95% intervals, the paired
+          difference between arms, every seed's error, and a verdict with its caveats.
+        </div>
+        ${this.probes()}`;
+    }
+    const h = v.headline;
+    return html`${h
+        ? html`<div class="answer" data-kind=${h.kind} data-headline>
+            <span class="a" aria-hidden="true">∴</span>
+            <span class="text">At n = ${h.size}${h.scale !== 1 ? ` (weights ×${h.scale})` : ''}: ${h.text}</span>
+            <span class="sub">${h.pair} on the farthest rung (depth ${num(h.depthMean, 2)}); ${h.detail}.</span>
+          </div>`
+        : nothing}
+      ${v.complete ? nothing : html`<p class="partial">Partial evidence: ${v.runsDone} of ${v.runsExpected} runs in. Verdicts use complete seed pairs only.</p>`}
+      <div class="legend" role="group" aria-label="Legend">
+        ${v.arms.map((a) => html`<span class="key"><span class="swatch" style=${`--c: ${a.color}`}></span>${a.name}</span>`)}
+        <span class="train"><i></i>training sizes ${v.trainSizes[0]}–${v.trainSizes[1]} (◇ in-distribution error)</span>
+        <label><input type="checkbox" .checked=${this.logY} @change=${(e: Event) => (this.logY = (e.target as HTMLInputElement).checked)} aria-label="Log scale for errors" />log scale</label>
+      </div>
+      <div class="figs">
+        <ff-figure
+          .number=${1}
+          heading="Extrapolation: error against test size"
+          name="curves"
+          .figure=${this.figures.curves}
+          caption=${`Mean ${v.metricLabel} over seeds with a 95% bootstrap interval, per arm. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
+        ></ff-figure>
+        <div class="pair">
+          ${this.figures.diffs
+            ? html`<ff-figure
+                .number=${2}
+                heading="Paired difference per size"
+                name="differences"
+                .figure=${this.figures.diffs}
+                caption="Mean over seeds of (error of A − error of B), same graphs and initial weights per seed, with a 95% paired bootstrap interval. Below the zero line A is better; a coloured point marks a verdict for that arm."
+              ></ff-figure>`
+            : nothing}
+          <ff-figure
+            .number=${this.figures.diffs ? 3 : 2}
+            heading="Every seed"
+            name="seeds"
+            .figure=${this.figures.seeds}
+            caption="Each dot is one trained network; lines join the arms of the same seed, so crossing lines mean the seeds disagree."
+          ></ff-figure>
+        </div>
+        <ff-verdict-table .verdicts=${v.verdicts} .caveats=${v.caveats} .failures=${v.failures} .arms=${v.arms} metric=${v.metric}></ff-verdict-table>
+      </div>
+      ${this.probes()}`;
+  }
+
+  /** Reserved: probe plots, the audit table and the alignment trace go here (slot "probes"). */
+  private probes() {
+    return html`<section id="probes" aria-labelledby="probes-h">
+      <slot name="probes">
+        <h3 id="probes-h">Probes, audit and alignment trace</h3>
+        <p>Learned-versus-true function plots, the audit table and an alignment trace on one small graph will appear here.</p>
+      </slot>
+    </section>`;
+  }
+}
+
+customElements.define('ff-evidence', FfEvidence);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'ff-evidence': FfEvidence;
+  }
+}

@@ -1,0 +1,119 @@
+/** <ff-figure>: one evidence figure with its number, title, caption, and SVG / PNG export. */
+import { LitElement, css, html, nothing } from 'lit';
+import { controls } from './styles.ts';
+import { emit } from './events.ts';
+
+export class FfFigure extends LitElement {
+  static override properties = {
+    number: { type: Number },
+    heading: {},
+    caption: {},
+    name: {},
+    figure: { attribute: false },
+  };
+  declare number: number;
+  declare heading: string;
+  declare caption: string;
+  /** File-name stem for exports, e.g. "curves". */
+  declare name: string;
+  /** The drawn figure (an SVG, or a figure element holding one). */
+  declare figure: Element | null;
+
+  static override styles = [
+    controls,
+    css`
+      :host {
+        display: block;
+        min-width: 0;
+      }
+      figure {
+        margin: 0;
+        background: var(--card);
+        border: 1px solid var(--rule);
+        border-radius: 4px;
+        padding: 0.8em 1em 0.7em;
+      }
+      .top {
+        display: flex;
+        align-items: baseline;
+        gap: 0.6em;
+        justify-content: space-between;
+        flex-wrap: wrap;
+      }
+      h3 {
+        margin: 0;
+        font-size: 1.05em;
+        font-family: var(--serif);
+      }
+      h3 .no {
+        color: var(--ochre);
+        margin-right: 0.3em;
+      }
+      .tools {
+        display: flex;
+        gap: 0.3em;
+      }
+      .tools button {
+        font-size: 0.78em;
+        padding: 0.15em 0.55em;
+      }
+      .plot {
+        margin-top: 0.5em;
+      }
+      .plot svg {
+        max-width: 100%;
+        height: auto;
+        display: block;
+      }
+      figcaption {
+        margin-top: 0.35em;
+        font-size: 0.88em;
+        color: var(--muted);
+        line-height: 1.45;
+      }
+    `,
+  ];
+
+  constructor() {
+    super();
+    this.number = 1;
+    this.heading = '';
+    this.caption = '';
+    this.name = 'figure';
+    this.figure = null;
+  }
+
+  private svg(): SVGSVGElement | null {
+    const f = this.figure;
+    if (!f) return null;
+    if (f instanceof SVGSVGElement) return f;
+    return f.querySelector('svg');
+  }
+
+  private export(format: 'svg' | 'png') {
+    const svg = this.svg();
+    if (svg) emit(this, 'ff-export-figure', { name: this.name, format, svg });
+  }
+
+  override render() {
+    return html`<figure aria-labelledby="h">
+      <div class="top">
+        <h3 id="h"><span class="no">Fig. ${this.number}</span>${this.heading}</h3>
+        <div class="tools">
+          <button type="button" aria-label=${`Export figure ${this.number} as SVG`} ?disabled=${!this.figure} @click=${() => this.export('svg')}>SVG</button>
+          <button type="button" aria-label=${`Export figure ${this.number} as PNG`} ?disabled=${!this.figure} @click=${() => this.export('png')}>PNG</button>
+        </div>
+      </div>
+      <div class="plot">${this.figure ?? nothing}</div>
+      ${this.caption ? html`<figcaption>${this.caption}</figcaption>` : nothing}
+    </figure>`;
+  }
+}
+
+customElements.define('ff-figure', FfFigure);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'ff-figure': FfFigure;
+  }
+}

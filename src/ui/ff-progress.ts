@@ -1,0 +1,180 @@
+/** <ff-progress>: overall progress, and per run (seeds down, arms across) its loss sparkline, steps and ETA. */
+import { LitElement, css, html, nothing } from 'lit';
+import type { ProgressView, RunRow } from './progress-view.ts';
+import type { SheetState } from './run-controller.ts';
+import { controls } from './styles.ts';
+import './ff-sparkline.ts';
+
+export class FfProgress extends LitElement {
+  static override properties = {
+    view: { attribute: false },
+    state: {},
+  };
+  declare view: ProgressView | null;
+  declare state: SheetState;
+
+  static override styles = [
+    controls,
+    css`
+      :host {
+        display: block;
+      }
+      .overall {
+        display: flex;
+        flex-wrap: wrap;
+        align-items: center;
+        gap: 0.4em 1em;
+        margin: 0.9em 0 0.7em;
+      }
+      .meter {
+        flex: 1 1 16em;
+        height: 0.7em;
+        background: var(--paper-deep);
+        border-radius: 99px;
+        overflow: hidden;
+        border: 1px solid var(--rule);
+      }
+      .meter > div {
+        height: 100%;
+        background: var(--teal);
+        transition: width 0.4s ease;
+      }
+      .summary {
+        font-size: 0.95em;
+      }
+      .eta {
+        color: var(--muted);
+        font-size: 0.92em;
+      }
+      .grid {
+        display: grid;
+        gap: 0.35em 0.8em;
+        align-items: stretch;
+        overflow-x: auto;
+      }
+      .colhead {
+        font-weight: 700;
+        font-size: 0.9em;
+        padding-bottom: 0.1em;
+        border-bottom: 3px solid var(--arm);
+        color: var(--arm);
+        white-space: nowrap;
+        overflow: hidden;
+        text-overflow: ellipsis;
+      }
+      .rowhead {
+        font-size: 0.85em;
+        color: var(--muted);
+        align-self: center;
+        white-space: nowrap;
+      }
+      .cell {
+        display: grid;
+        grid-template-columns: 7.5em 1fr;
+        gap: 0 0.6em;
+        align-items: center;
+        padding: 0.25em 0.45em;
+        border-radius: 3px;
+        background: var(--card);
+        border: 1px solid transparent;
+        min-width: 0;
+      }
+      .cell ff-sparkline {
+        width: 7.5em;
+        height: 1.8em;
+        color: var(--arm);
+      }
+      .cell .status {
+        font-size: 0.85em;
+        font-family: var(--mono);
+        white-space: nowrap;
+      }
+      .cell .detail {
+        font-size: 0.78em;
+        color: var(--muted);
+        overflow: hidden;
+        text-overflow: ellipsis;
+        white-space: nowrap;
+      }
+      .cell[data-phase='running'] {
+        border-color: var(--arm);
+      }
+      .cell[data-phase='failed'],
+      .cell[data-phase='diverged'] {
+        background: var(--danger-soft);
+        border-color: var(--danger);
+      }
+      .cell[data-phase='failed'] .status,
+      .cell[data-phase='diverged'] .status {
+        color: var(--danger);
+        font-weight: 700;
+      }
+      .cell[data-phase='failed'] .detail,
+      .cell[data-phase='diverged'] .detail {
+        white-space: normal;
+        color: var(--ink);
+      }
+      .cell[data-phase='waiting'],
+      .cell[data-phase='cancelled'] {
+        opacity: 0.6;
+      }
+      .cell[data-phase='ok'] .status {
+        color: var(--ok);
+      }
+    `,
+  ];
+
+  constructor() {
+    super();
+    this.view = null;
+    this.state = 'idle';
+  }
+
+  private cell(row: RunRow | undefined) {
+    if (!row) return html`<div></div>`;
+    return html`<div
+      class="cell"
+      style=${`--arm: ${row.color}`}
+      data-run=${row.index}
+      data-phase=${row.phase}
+      data-kept=${row.kept ? 'yes' : 'no'}
+      title=${`${row.arm}, seed ${row.seed}: ${row.status}${row.detail ? ` — ${row.detail}` : ''}`}
+    >
+      <ff-sparkline .values=${row.losses} color=${row.color} label=${`training loss of ${row.arm}, seed ${row.seed}`}></ff-sparkline>
+      <div>
+        <div class="status">${row.status}</div>
+        <div class="detail" data-reason>${row.detail}</div>
+      </div>
+    </div>`;
+  }
+
+  override render() {
+    const v = this.view;
+    if (!v || v.total === 0) return null;
+    const percent = Math.round(v.fraction * 100);
+    const columns = `auto repeat(${v.arms.length}, minmax(15em, 1fr))`;
+    return html`<div class="overall">
+        <div class="summary" aria-live="polite" data-summary>${v.summary}</div>
+        <div class="meter" role="progressbar" aria-label="Overall progress" aria-valuemin="0" aria-valuemax="100" aria-valuenow=${percent}>
+          <div style=${`width: ${percent}%`}></div>
+        </div>
+        <div class="eta">${v.elapsed ? `${v.elapsed} elapsed` : nothing}${v.eta ? ` · ${v.eta}` : nothing}</div>
+      </div>
+      <div class="grid" style=${`grid-template-columns: ${columns}`} role="group" aria-label="Runs: seeds down, arms across">
+        <div></div>
+        ${v.arms.map((a) => html`<div class="colhead" style=${`--arm: ${a.color}`}>${a.name}</div>`)}
+        ${v.seeds.map(
+          (seed) => html`<div class="rowhead">seed ${seed}</div>
+            ${v.arms.map((a) => this.cell(v.rows.find((r) => r.seed === seed && r.arm === a.name)))}`,
+        )}
+      </div>`;
+  }
+}
+
+customElements.define('ff-progress', FfProgress);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'ff-progress': FfProgress;
+  }
+}

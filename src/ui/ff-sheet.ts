@@ -1,0 +1,254 @@
+/**
+ * <ff-sheet>: Farfield's experiment sheet, read top to bottom like a lab
+ * note: the question; the setup; the arms side by side; run and live
+ * progress; the evidence; share and export. It renders the SheetController's
+ * model and forwards its children's events to it. `data-state` on this
+ * element is idle | running | done | cancelled.
+ */
+import { LitElement, css, html, nothing } from 'lit';
+import { SheetController, type SheetModel } from './sheet-controller.ts';
+import { armCards, problemFields } from './spec-draft.ts';
+import { familyCatalogue, taskCatalogue } from './catalogue.ts';
+import { progressView } from './progress-view.ts';
+import { armColor } from './palette.ts';
+import { LIMITS } from '../experiment/limits.ts';
+import { controls, sectionHead, tokens } from './styles.ts';
+import './ff-masthead.ts';
+import './ff-notice.ts';
+import './ff-question.ts';
+import './ff-setup.ts';
+import './ff-arms.ts';
+import './ff-run-controls.ts';
+import './ff-progress.ts';
+import './ff-evidence.ts';
+import './ff-share.ts';
+
+const TASKS = taskCatalogue();
+const FAMILIES = familyCatalogue();
+
+function sourceLabel(m: SheetModel): string {
+  const edited = m.edited ? ' · edited' : '';
+  switch (m.source.kind) {
+    case 'preset':
+      return `${m.source.file}${edited}`;
+    case 'link':
+      return `${m.source.own ? 'this sheet’s address' : 'opened from a share link'}${edited}`;
+    case 'file':
+      return `file ${m.source.name}${edited}`;
+  }
+}
+
+export class FfSheet extends LitElement {
+  static override properties = {
+    presenter: { type: Boolean, reflect: true },
+  };
+  declare presenter: boolean;
+
+  private controller = new SheetController(this);
+
+  static override styles = [
+    tokens,
+    controls,
+    sectionHead,
+    css`
+      :host {
+        display: block;
+        font-size: 17px;
+        line-height: 1.45;
+        color: var(--ink);
+        background: var(--paper);
+        min-height: 100vh;
+      }
+      :host([presenter]) {
+        font-size: 22px;
+      }
+      .page {
+        max-width: 1320px;
+        margin: 0 auto;
+        padding: 0 1.6em 3em;
+        display: flex;
+        flex-direction: column;
+      }
+      section.part {
+        padding: 1.3em 0 1.4em;
+        border-bottom: 1px solid var(--rule);
+      }
+      section.part:last-of-type {
+        border-bottom: none;
+      }
+      .q {
+        order: 1;
+        padding-top: 1.6em;
+      }
+      .setup {
+        order: 2;
+      }
+      .arms {
+        order: 3;
+      }
+      .run {
+        order: 4;
+      }
+      .evidence {
+        order: 5;
+      }
+      .share {
+        order: 6;
+      }
+      footer {
+        order: 7;
+      }
+      :host([presenter]) .evidence {
+        order: 2;
+      }
+      :host([presenter]) .run {
+        order: 3;
+      }
+      :host([presenter]) .arms {
+        order: 4;
+      }
+      :host([presenter]) .setup {
+        order: 5;
+      }
+      .banner {
+        margin: 1em 0 0;
+        padding: 0.6em 0.9em;
+        border-left: 5px solid var(--teal);
+        background: #dcebe6;
+        border-radius: 0 4px 4px 0;
+        font-size: 0.95em;
+      }
+      .banner code {
+        font-family: var(--mono);
+      }
+      footer {
+        padding-top: 1.2em;
+        font-size: 0.82em;
+        color: var(--muted);
+      }
+    `,
+  ];
+
+  constructor() {
+    super();
+    this.presenter = false;
+  }
+
+  protected override willUpdate(): void {
+    this.presenter = this.controller.model.presenter;
+  }
+
+  protected override updated(): void {
+    const m = this.controller.model;
+    this.dataset.state = m.run.state;
+    this.dataset.ready = m.ready ? 'yes' : 'no';
+  }
+
+  override render() {
+    const c = this.controller;
+    const m = c.model;
+    const running = m.run.state === 'running';
+    const problems = m.validation.ok ? [] : m.validation.problems;
+    const invalid = problemFields(problems);
+    const cards = armCards(m.draft, armColor);
+    const progress = progressView(m.run, Date.now());
+    const missing = m.validation.ok ? c.missingCount() : 0;
+    const fp = m.doc && m.doc.complete ? m.doc.fingerprint : '';
+    const masthead = html`<ff-masthead
+      .presets=${m.presets}
+      selected=${m.source.kind === 'preset' ? m.source.id : ''}
+      sourceLabel=${sourceLabel(m)}
+      ?presenter=${m.presenter}
+      ?disabled=${running}
+      @ff-preset=${(e: CustomEvent<{ id: string }>) => c.choosePreset(e.detail.id)}
+      @ff-file=${(e: CustomEvent<{ name: string; text: string }>) => c.loadFile(e.detail.name, e.detail.text)}
+      @ff-presenter=${() => c.togglePresenter()}
+    ></ff-masthead>`;
+
+    return html`<div class="page" @ff-edit=${(e: CustomEvent) => c.edit(e.detail)}>
+      ${masthead}
+      <ff-notice .notice=${m.notice} @ff-dismiss=${() => c.dismissNotice()}></ff-notice>
+      ${m.source.kind === 'link' && !m.source.own
+        ? html`<p class="banner" data-link-banner>
+            Opened from a share link: the whole experiment is below. Nothing runs until you press <strong>Run</strong>.
+            ${m.fingerprintCheck ? html`The link carries results fingerprint <code>${m.fingerprintCheck.expected}</code>.` : nothing}
+          </p>`
+        : nothing}
+
+      <section class="part q" aria-label="Question">
+        <ff-question question=${m.draft.question} expectation=${m.draft.expectation} ?disabled=${running} ?invalid=${invalid.has('question')}></ff-question>
+      </section>
+
+      <section class="part setup" aria-labelledby="h-setup">
+        <h2 class="section-head" id="h-setup"><span class="mark">§1</span> Setup</h2>
+        <ff-setup .draft=${m.draft} .tasks=${TASKS} .families=${FAMILIES} .invalid=${invalid} ?disabled=${running}></ff-setup>
+      </section>
+
+      <section class="part arms" aria-labelledby="h-arms">
+        <h2 class="section-head" id="h-arms">
+          <span class="mark">§2</span> Arms <span class="aside">side by side; switches that differ between arms are marked ≠ — that is what this experiment tests.</span>
+        </h2>
+        <ff-arms .arms=${cards} .invalid=${invalid} ?disabled=${running} .maxArms=${LIMITS.arms.max}></ff-arms>
+      </section>
+
+      <section class="part run" aria-labelledby="h-run">
+        <h2 class="section-head" id="h-run"><span class="mark">§3</span> Run <span class="aside">in web workers on this machine; nothing leaves the page.</span></h2>
+        <ff-run-controls
+          state=${m.run.state}
+          .problems=${problems}
+          .total=${m.run.tracks.length}
+          .missing=${missing}
+          .kept=${m.run.keptCount}
+          .workers=${m.workers}
+          .maxWorkers=${m.maxWorkers}
+          .engine=${m.run.engine}
+          .storageNote=${m.run.storageNote}
+          ?ready=${m.ready}
+          @ff-run=${() => c.run()}
+          @ff-cancel=${() => c.cancel()}
+          @ff-forget=${() => void c.forgetKept()}
+          @ff-workers=${(e: CustomEvent<{ count: number }>) => c.setWorkers(e.detail.count)}
+        ></ff-run-controls>
+        <ff-progress .view=${progress} state=${m.run.state}></ff-progress>
+      </section>
+
+      <section class="part evidence" aria-labelledby="h-evidence">
+        <h2 class="section-head" id="h-evidence"><span class="mark">§4</span> Evidence</h2>
+        <ff-evidence
+          id="results"
+          data-fingerprint=${fp || nothing}
+          data-complete=${m.doc?.complete ? 'yes' : 'no'}
+          .evidence=${m.evidence}
+          ?presenter=${m.presenter}
+          @ff-export-figure=${(e: CustomEvent<{ name: string; format: 'svg' | 'png'; svg: SVGSVGElement }>) => void c.exportFigure(e.detail.name, e.detail.format, e.detail.svg)}
+        ></ff-evidence>
+      </section>
+
+      <section class="part share" aria-labelledby="h-share">
+        <h2 class="section-head" id="h-share"><span class="mark">§5</span> Share and export</h2>
+        <ff-share
+          .share=${m.share}
+          fingerprint=${fp}
+          specHash=${m.doc?.specHash ?? ''}
+          .check=${m.fingerprintCheck}
+          ?hasResults=${Boolean(m.doc)}
+          ?edited=${m.edited}
+          @ff-copy-link=${() => void c.copyShareLink()}
+          @ff-export-results=${(e: CustomEvent<{ format: 'json' | 'csv' }>) => (e.detail.format === 'json' ? c.exportJson() : c.exportCsv())}
+        ></ff-share>
+      </section>
+      <footer>
+        Farfield runs every experiment in this browser on the tfjs WASM backend — the same engine, the same numbers as <code>npx farfield run</code>. Finished runs are kept
+        in this browser (IndexedDB) until you forget them.
+      </footer>
+    </div>`;
+  }
+}
+
+customElements.define('ff-sheet', FfSheet);
+
+declare global {
+  interface HTMLElementTagNameMap {
+    'ff-sheet': FfSheet;
+  }
+}

@@ -1,0 +1,24 @@
+/** Number and time formatting for the sheet. */
+
+export function num(x: number | null | undefined, digits = 3): string {
+  if (x === null || x === undefined || Number.isNaN(x)) return '—';
+  if (!Number.isFinite(x)) return x > 0 ? '∞' : '−∞';
+  const a = Math.abs(x);
+  if (a !== 0 && (a < 1e-3 || a >= 1e5)) return x.toExponential(2).replace('-', '−');
+  return Number(x.toPrecision(digits)).toString().replace('-', '−');
+}
+
+export function pValue(p: number): string {
+  if (!Number.isFinite(p)) return '—';
+  if (p < 0.001) return '< 0.001';
+  return Number(p.toPrecision(2)).toString();
+}
+
+export function duration(seconds: number): string {
+  if (!Number.isFinite(seconds) || seconds < 0) return '—';
+  if (seconds < 1) return '< 1 s';
+  if (seconds < 90) return `${Math.round(seconds)} s`;
+  const minutes = seconds / 60;
+  if (minutes < 90) return `${Math.round(minutes)} min`;
+  return `${(minutes / 60).toFixed(1)} h`;
+}
