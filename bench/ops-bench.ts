@@ -1,12 +1,14 @@
 /**
  * Micro-benchmark of the engine's graph ops and matmul patch.
- * Run: npx tsx bench/ops-bench.ts [--quick]
+ * Run: npx tsx bench/ops-bench.ts [--quick] [--matmul-only]
  *
  * Reference workload (DESIGN.md "Facts measured"): hidden 32, 16 message-passing
  * steps, a batch of 32 graphs x 16 nodes (disjoint union, ~4 in-edges per node),
  * message m = relu(W1 h_src + W2 h_dst + w_e e), sum and max aggregators,
  * residual update h <- h + A_sum U_s + A_max U_m + b, linear read-out, MSE, Adam.
- * Reports training steps/s on WASM (patched and stock matmul) and CPU, a dense
+ * Reports training steps/s on WASM (with and without each kernel patch; the
+ * variants run interleaved in rounds so load on a shared machine hits all
+ * alike) and CPU, the first three losses (float32 bits) of each, a dense
  * layer forward+backward (512x32 @ 32x32) with stock vs patched WASM matmul,
  * and WASM matmul GFLOP/s on a 256^3 product.
  */

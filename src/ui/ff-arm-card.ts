@@ -63,7 +63,11 @@ export class FfArmCard extends LitElement {
       }
       .tools {
         display: flex;
-        gap: 0.1em;
+        gap: 0;
+      }
+      .tools button {
+        font-size: 0.8em;
+        padding-inline: 0.35em;
       }
       textarea {
         width: 100%;
@@ -75,15 +79,15 @@ export class FfArmCard extends LitElement {
       }
       dl {
         display: grid;
-        grid-template-columns: minmax(6.5em, auto) 1fr;
-        gap: 0.28em 0.6em;
+        grid-template-columns: 6.6em 1fr;
+        gap: 0.3em 0.6em;
         margin: 0;
-        align-items: center;
+        align-items: start;
       }
       dt {
         font-size: 0.88em;
         color: var(--muted);
-        padding: 0.15em 0 0.15em 0.4em;
+        padding: 0.3em 0 0.2em 0.4em;
         border-left: 3px solid transparent;
       }
       dd {
@@ -119,11 +123,14 @@ export class FfArmCard extends LitElement {
         gap: 0.3em;
         align-items: center;
       }
+      dd > select {
+        width: 9.5em;
+      }
       select {
         max-width: 100%;
       }
       input[type='number'] {
-        width: 5em;
+        width: 4.6em;
       }
       .hint {
         font-size: 0.8em;
@@ -230,7 +237,7 @@ export class FfArmCard extends LitElement {
           @change=${(e: Event) => emit(this, 'ff-edit', { kind: 'arm-name', arm: v.index, name: (e.target as HTMLInputElement).value })}
         />
         <span class="tools">
-          <button type="button" class="quiet" title="Duplicate this arm" aria-label=${`Duplicate arm ${v.name}`} ?disabled=${this.disabled} @click=${() => emit(this, 'ff-edit', { kind: 'arm-duplicate', arm: v.index })}>⧉</button>
+          <button type="button" class="quiet" title="Duplicate this arm" aria-label=${`Duplicate arm ${v.name}`} ?disabled=${this.disabled} @click=${() => emit(this, 'ff-edit', { kind: 'arm-duplicate', arm: v.index })}>duplicate</button>
           <button
             type="button"
             class="quiet"
@@ -238,7 +245,7 @@ export class FfArmCard extends LitElement {
             aria-label=${`Remove arm ${v.name}`}
             ?disabled=${this.disabled || !v.canRemove}
             @click=${() => emit(this, 'ff-edit', { kind: 'arm-remove', arm: v.index })}
-          >✕</button>
+          >remove</button>
         </span>
       </div>
       <textarea

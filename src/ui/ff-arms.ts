@@ -24,17 +24,23 @@ export class FfArms extends LitElement {
         display: block;
       }
       .cards {
-        display: grid;
-        grid-template-columns: repeat(auto-fill, minmax(19.5em, 1fr));
+        display: flex;
+        flex-wrap: wrap;
         gap: 1em;
         align-items: stretch;
       }
+      ff-arm-card {
+        flex: 0 1 23em;
+        min-width: 19em;
+      }
       .add {
+        flex: 0 0 8.5em;
         border: 2px dashed var(--rule);
         border-radius: 4px;
         min-height: 8em;
         display: grid;
         place-items: center;
+        text-align: center;
         background: transparent;
         color: var(--muted);
         font-size: 1em;

@@ -219,7 +219,7 @@ export class FfEvidence extends LitElement {
           heading="Extrapolation: error against test size"
           name="curves"
           .figure=${this.figures.curves}
-          caption=${`Mean ${v.metricLabel} over seeds with a 95% bootstrap interval, per arm. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
+          caption=${`Per arm, the mean over seeds of the ${v.metricLabel}, with a 95% bootstrap interval; ◇ marks the error on held-out graphs of the training sizes. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
         ></ff-figure>
         <div class="pair">
           ${this.figures.diffs

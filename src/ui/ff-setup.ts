@@ -56,7 +56,7 @@ export class FfSetup extends LitElement {
         width: 9em;
       }
       input.list {
-        width: 11em;
+        width: 8.5em;
         font-family: var(--mono);
         font-size: 0.92em;
       }
