@@ -49,14 +49,14 @@ export const K = {
   segmentCounts: 'FarfieldSegmentCounts',
 } as const;
 
-type TypedArray = Float32Array | Int32Array | Uint8Array;
-type Flavour = 'wasm' | 'cpu';
+export type TypedArray = Float32Array | Int32Array | Uint8Array;
+export type Flavour = 'wasm' | 'cpu';
 type NumDType = 'float32' | 'int32' | 'bool';
-interface OutSpec {
+export interface OutSpec {
   shape: number[];
   dtype: NumDType;
 }
-type Body = (outs: TypedArray[], ins: TypedArray[]) => void;
+export type Body = (outs: TypedArray[], ins: TypedArray[]) => void;
 
 function newTyped(dtype: NumDType, size: number): TypedArray {
   if (dtype === 'float32') return new Float32Array(size);
@@ -68,7 +68,7 @@ function newTyped(dtype: NumDType, size: number): TypedArray {
  * Run `body` with views of the inputs and freshly allocated outputs on either
  * backend. Output arrays are NOT zeroed on WASM; bodies must write every element.
  */
-function execute(
+export function execute(
   flavour: Flavour,
   backendObj: unknown,
   ins: tf.TensorInfo[],

@@ -24,7 +24,7 @@ import type { Rng } from '../util/rng.ts';
 import { ParamStore } from './params.ts';
 import { getAggregator, type Aggregator } from './aggregators.ts';
 import { semiringDense, type SemiringKind } from './semiring.ts';
-import { gatherRows, segmentCounts } from './ops.ts';
+import { gatherPairAdd, gatherRows, segmentCounts } from './ops.ts';
 
 export interface NetworkInputs {
   nodeX: tf.Tensor2D;
@@ -140,10 +140,8 @@ export class MessagePassingNetwork {
   /** Messages for every edge given node states; `edgeTerm` is W_e ê (+ b), constant across steps. */
   message(h: tf.Tensor2D, edgeTerm: tf.Tensor2D, inputs: NetworkInputs, joined = this.joinedWeights().message): tf.Tensor2D {
     if (this.options.message === 'mlp') {
-      const projected = tf.matMul(h, joined!);
-      const H = this.options.hidden;
-      const [ps, pd] = tf.split(projected, [H, H], 1) as [tf.Tensor2D, tf.Tensor2D];
-      const pre = tf.add(tf.add(gatherRows(ps, inputs.src), gatherRows(pd, inputs.dst)), edgeTerm) as tf.Tensor2D;
+      const projected = tf.matMul(h, joined!) as tf.Tensor2D;
+      const pre = gatherPairAdd(projected, inputs.src, inputs.dst, edgeTerm);
       return this.dense(this.activate(pre), 'message.w2', 'message.b2');
     }
     const senders = semiringDense(h, this.params.get('message.semiring') as tf.Tensor2D, this.options.message as SemiringKind, this.options.messageTemperature);
@@ -154,14 +152,20 @@ export class MessagePassingNetwork {
     return this.dense(edgeX, 'message.we', 'message.b');
   }
 
-  update(h: tf.Tensor2D, a: tf.Tensor2D, encoded: tf.Tensor2D, hasIncoming: tf.Tensor2D, joinedWeight = this.joinedWeights().update): tf.Tensor2D {
+  update(
+    h: tf.Tensor2D,
+    a: tf.Tensor2D,
+    encoded: tf.Tensor2D,
+    hasIncoming: tf.Tensor2D,
+    joinedWeight = this.joinedWeights().update,
+  ): tf.Tensor2D {
     const H = this.options.hidden;
     switch (this.options.update) {
       case 'mlp': {
-        const joined = tf.concat([h, a, encoded], 1) as tf.Tensor2D;
-        const w = joinedWeight!;
+        // One concat and one fused matmul: fewer, larger ops beat per-operand matmuls here
+        // (WASM's fused matmul takes only a rank-1 bias, so the input term cannot ride in as a bias).
         const bias = this.params.has('update.b') ? this.params.get('update.b') : undefined;
-        const hidden = this.affine(joined, w, bias, 'act');
+        const hidden = this.affine(tf.concat([h, a, encoded], 1) as tf.Tensor2D, joinedWeight!, bias, 'act');
         return tf.add(h, this.dense(hidden, 'update.w2', 'update.b2')) as tf.Tensor2D;
       }
       case 'gated': {

@@ -15,6 +15,7 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import { K, registerGraphKernels } from '../engine/kernels-graph.ts';
+import { PAIR_KERNELS, registerPairKernels } from '../engine/kernels-pair.ts';
 
 // Registering is cheap and backend-independent; doing it here means the ops
 // also work if a caller selected a backend with tf.setBackend directly.
@@ -101,4 +102,22 @@ export function segmentCounts(segmentIds: tf.Tensor1D, numSegments: number): tf.
     throw new Error(`model/ops segmentCounts: numSegments must be a non-negative integer, got ${numSegments}`);
   }
   return tf.engine().runKernel(K.segmentCounts, { segmentIds }, { numSegments }) as tf.Tensor2D;
+}
+
+registerPairKernels('wasm');
+registerPairKernels('cpu');
+
+/**
+ * out[e, :] = p[src[e], :H] + p[dst[e], H:] + b[e, :] for p = [nodes, 2H], b = [edges, H]:
+ * the first message layer's per-edge sum in one launch. Gradient wrt p
+ * scatters dy back to both halves; wrt b it is dy.
+ */
+export function gatherPairAdd(p: tf.Tensor2D, src: tf.Tensor1D, dst: tf.Tensor1D, b: tf.Tensor2D): tf.Tensor2D {
+  check2d('gatherPairAdd', p);
+  checkIds('gatherPairAdd', src, 'src');
+  checkIds('gatherPairAdd', dst, 'dst');
+  if (p.shape[1] % 2 !== 0 || b.shape[1] !== p.shape[1] / 2 || b.shape[0] !== src.shape[0] || dst.shape[0] !== src.shape[0]) {
+    throw new Error(`model/ops gatherPairAdd: shapes p [${p.shape}], src [${src.shape}], dst [${dst.shape}], b [${b.shape}] do not fit`);
+  }
+  return tf.engine().runKernel(PAIR_KERNELS.gatherPairAdd, { p, src, dst, b }) as tf.Tensor2D;
 }
