@@ -107,7 +107,7 @@ export const SWEEP_FIELDS = [
 
 export const armSchema = z
   .object({
-    name: z.string().min(1).max(40).regex(/^[\w .,:=+\-()×]+$/, 'use letters, digits, spaces and . , : = + - ( ) ×'),
+    name: z.string().min(1).max(40).regex(/^[\p{L}\p{N}_ .,:=+\-()×]+$/u, 'use letters, digits, spaces and _ . , : = + - ( ) ×'),
     note: text(400).optional(),
     model: modelOverrideSchema.default({}),
     /** Overrides budget.learningRate for this arm only (learning-rate studies; deliberately diverging arms in tests). */
