@@ -6,6 +6,7 @@ import { commandCheck } from './commands/check.ts';
 import { commandSample } from './commands/sample.ts';
 import { commandProbe } from './commands/probe.ts';
 import { commandMerge } from './commands/merge.ts';
+import { commandShare } from './commands/share.ts';
 
 export class UsageError extends Error {}
 
@@ -21,6 +22,8 @@ Commands:
   probe <preset.json | link> [--json] [--seeds N] [--arms a,b]
       train each arm on the first seed (or N), print the algebraic audit, learned-vs-true probes and the alignment trace
 
+  share <preset.json | link> [--base URL] [--fingerprint HEX]
+      print a share link carrying the whole spec (open it in the sheet, or pass it to run)
   merge part-1.json part-2.json ... [--out FILE] [--json]
       combine shard results (run --shard i/N) and recompute the statistics
 
@@ -34,6 +37,7 @@ const COMMANDS: Record<string, Command> = {
   sample: commandSample,
   probe: commandProbe,
   merge: commandMerge,
+  share: commandShare,
 };
 
 export async function main(argv: string[]): Promise<number> {

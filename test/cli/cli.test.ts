@@ -142,3 +142,16 @@ describe('farfield check and sample', () => {
     expect(nonsense.stderr).toMatch(/does not make sense on graph family 'er'/);
   });
 });
+
+describe('farfield share', () => {
+  it('prints a link that check reads back to the same spec hash', () => {
+    const link = farfield('share', tiny).stdout.trim();
+    expect(link).toMatch(/^http:\/\/127\.0\.0\.1:4173\/#ff1\./);
+    const fromFile = farfield('check', tiny).stdout.match(/spec hash ([0-9a-f]{16})/)![1];
+    const fromLink = farfield('check', link).stdout.match(/spec hash ([0-9a-f]{16})/)![1];
+    expect(fromLink).toBe(fromFile);
+    const broken = farfield('check', link.slice(0, -10) + 'AAAAAAAAAA');
+    expect(broken.code).toBe(1);
+    expect(broken.stderr).not.toMatch(/\n\s+at /);
+  });
+});

@@ -42,7 +42,8 @@ function pickPoints(probe: Probe, count = 6): number[] {
 }
 
 export function renderProbe(probe: Probe): string {
-  const lines = [`${probe.title} — x: ${probe.xLabel}; trained ${probe.trainingRange[0] === probe.trainingRange[1] ? `at ${num(probe.trainingRange[0])}` : `on ${num(probe.trainingRange[0])}..${num(probe.trainingRange[1])}`}`];
+  const [lo, hi] = probe.trainingRange;
+  const lines = [`${probe.title} — x: ${probe.xLabel}; trained ${lo === hi ? `at ${num(lo)}` : `on ${num(lo)}..${num(hi)}`}`];
   if (probe.unavailable) return `${lines[0]}\n  not available: ${probe.unavailable}`;
   const table: string[][] = [['x', 'predicted', 'truth', 'mae', '']];
   for (const i of pickPoints(probe)) {
