@@ -382,7 +382,15 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
       return { ours: readRows(ours), theirs: readRows(theirs), stepsRun: run.states.length - 1 };
     });
     rows.push(
-      makeRow('replay matches forward', 'network', 'step-by-step replay', 'relative', [relativeMaxDiff(replay.ours, replay.theirs)], { kind: 'rounding', tol: NETWORK_TOLERANCE }, 'our replay of message → aggregate → update through public methods vs network.forward; probes rely on it'),
+      makeRow(
+        'replay matches forward',
+        'network',
+        'step-by-step replay',
+        'relative',
+        [relativeMaxDiff(replay.ours, replay.theirs)],
+        { kind: 'rounding', tol: NETWORK_TOLERANCE },
+        'our replay of message → aggregate → update through public methods vs network.forward; probes rely on it',
+      ),
     );
 
     // ---- update checks on recorded states
@@ -453,7 +461,15 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
     else if (o.aggregator === 'mean') actionExpect = { kind: 'report', label: 'not 0 (the midpoint is not associative)' };
     else actionExpect = { kind: 'rounding', tol: ROUNDING_TOLERANCE };
     rows.push(
-      makeRow('monoid action u(u(h,a),b) = u(h,a⊕b)', 'update', updateSubject, 'relative', actionSamples, actionExpect, "each node's real messages split at random into halves a, b (nodes with both halves non-empty); per node ‖stepwise − at once‖∞ / ‖at once‖∞"),
+      makeRow(
+        'monoid action u(u(h,a),b) = u(h,a⊕b)',
+        'update',
+        updateSubject,
+        'relative',
+        actionSamples,
+        actionExpect,
+        "each node's real messages split at random into halves a, b (nodes with both halves non-empty); per node ‖stepwise − at once‖∞ / ‖at once‖∞",
+      ),
     );
   } finally {
     tensors.dispose();
@@ -526,7 +542,7 @@ interface AsyncOptions {
  * Expected: an "aggregate" update with min or max is a monotone, idempotent
  * relaxation, which reaches the same fixed point under any fair schedule
  * (chaotic relaxation; Bertsekas & Tsitsiklis, Parallel and Distributed
- * Computation, 1989, §6.2) — provided the synchronous run itself reached it;
+ * Computation, 1989, ch. 6) — provided the synchronous run itself reached it;
  * everything else is reported. A second row is the control: the synchronous
  * run with as many steps as the average node got updates in the replay, vs T
  * steps, so extra updates are not mistaken for an effect of asynchrony.
@@ -633,7 +649,9 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
   }
   const safe = o.update === 'aggregate' && isHard(o.aggregator);
   const meanUpdates = Math.round(updatesTotal / Math.max(updatesCount, 1));
-  const expect: Expect = safe && syncAtFixedPoint ? { kind: 'rounding', tol: NETWORK_TOLERANCE } : safe ? { kind: 'report', label: '≈ 0 once both reach the fixed point (the synchronous run had not)' } : { kind: 'report' };
+  let expect: Expect = { kind: 'report' };
+  if (safe && syncAtFixedPoint) expect = { kind: 'rounding', tol: NETWORK_TOLERANCE };
+  else if (safe) expect = { kind: 'report', label: '≈ 0 once both reach the fixed point (the synchronous run had not)' };
   const subject = o.update === 'aggregate' ? `update aggregate (${o.aggregator})` : `update ${o.update}, ${o.aggregator} aggregator`;
   return [
     makeRow(
@@ -643,8 +661,9 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
       'relative',
       samples,
       expect,
-      `${options.schedules} random schedules (node rate ${options.nodeRate}, edge rate ${options.edgeRate}) until every node updated and every edge delivered ≥ T = ${T} times ` +
-        `(${ticksUsed} ticks, ${meanUpdates} updates per node on average); per graph mean |y_async − y_sync| / mean |y_sync| over counted nodes; synchronous run at a fixed point: ${syncAtFixedPoint ? 'yes' : 'no'}`,
+      `${options.schedules} random schedules (node rate ${options.nodeRate}, edge rate ${options.edgeRate}) ` +
+        `until every node updated and every edge delivered ≥ T = ${T} times (${ticksUsed} ticks, ${meanUpdates} updates per node on average); ` +
+        `per graph mean |y_async − y_sync| / mean |y_sync| over counted nodes; synchronous run at a fixed point: ${syncAtFixedPoint ? 'yes' : 'no'}`,
     ),
     makeRow(
       'extra synchronous steps (control)',
@@ -653,7 +672,8 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
       'relative',
       control,
       syncAtFixedPoint ? { kind: 'rounding', tol: NETWORK_TOLERANCE } : { kind: 'report' },
-      `synchronous run with ${Math.max(T, meanUpdates)} steps (the average updates per node in the asynchronous replay) vs ${T} steps: how much of the asynchronous deviation extra updates alone explain`,
+      `synchronous run with ${Math.max(T, meanUpdates)} steps (the average updates per node in the asynchronous replay) vs ${T} steps: ` +
+        'how much of the asynchronous deviation extra updates alone explain',
     ),
   ];
 }

@@ -348,18 +348,23 @@ export function messageProbe(network: MessagePassingNetwork, transforms: Feature
 
 export interface ProbeSummary {
   kind: ProbeKind;
-  /** Largest relative deviation mae / max(|truth|, floor) among points inside / outside the training range (null: no such point). */
+  /**
+   * Largest relative deviation mae / |truth| among points inside / outside the
+   * training range (null: no such point). A truth of 0 is floored at
+   * `floor` × the largest |truth| on the curve.
+   */
   worstInside: { x: number; relative: number } | null;
   worstOutside: { x: number; relative: number } | null;
 }
 
-/** Worst relative deviation inside and outside the trained range; floor avoids dividing by a zero truth. */
+/** Worst relative deviation mae / |truth| inside and outside the trained range. */
 export function probeSummary(probe: Probe, floor = 1e-6): ProbeSummary {
   let inside: ProbeSummary['worstInside'] = null;
   let outside: ProbeSummary['worstOutside'] = null;
-  const scale = Math.max(floor, ...probe.points.map((p) => (Number.isFinite(p.truth) ? Math.abs(p.truth) * 1e-3 : 0)));
+  const largest = Math.max(0, ...probe.points.map((p) => (Number.isFinite(p.truth) ? Math.abs(p.truth) : 0)));
+  const least = Math.max(floor * largest, 1e-12);
   for (const p of probe.points) {
-    const rel = Number.isFinite(p.mae) ? p.mae / Math.max(Math.abs(p.truth), scale) : Infinity;
+    const rel = Number.isFinite(p.mae) ? p.mae / Math.max(Math.abs(p.truth), least) : Infinity;
     const inRange = p.x >= probe.trainingRange[0] && p.x <= probe.trainingRange[1];
     const slot = inRange ? inside : outside;
     if (!slot || rel > slot.relative || Number.isNaN(slot.relative)) {

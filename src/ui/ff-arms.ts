@@ -30,8 +30,9 @@ export class FfArms extends LitElement {
         align-items: stretch;
       }
       ff-arm-card {
-        flex: 0 1 23em;
+        flex: 1 1 22em;
         min-width: 19em;
+        max-width: 36em;
       }
       .add {
         flex: 0 0 8.5em;

@@ -43,22 +43,21 @@ export class FfEvidence extends LitElement {
       }
       .answer {
         display: grid;
-        grid-template-columns: auto 1fr;
-        gap: 0.1em 0.8em;
-        align-items: baseline;
+        grid-template-columns: 1fr;
+        gap: 0.15em;
         margin: 0 0 1em;
-        padding: 0.8em 1em;
+        padding: 0.7em 1.1em 0.8em;
         background: var(--ink);
         color: var(--paper);
         border-radius: 4px;
       }
       .answer .a {
-        font-family: var(--serif);
-        font-size: 2.1em;
+        font-size: 0.72em;
         font-weight: 700;
+        letter-spacing: 0.12em;
+        text-transform: uppercase;
         color: #e9c46a;
-        line-height: 1;
-        grid-row: span 2;
+        grid-column: 1 / -1;
       }
       .answer .text {
         font-family: var(--serif);
@@ -113,17 +112,16 @@ export class FfEvidence extends LitElement {
       }
       .figs {
         display: grid;
+        grid-template-columns: minmax(0, 1fr);
         gap: 1em;
       }
       .pair {
         display: grid;
-        grid-template-columns: 1fr 1fr;
+        grid-template-columns: minmax(0, 1fr) minmax(0, 1fr);
         gap: 1em;
       }
-      @media (max-width: 1000px) {
-        .pair {
-          grid-template-columns: 1fr;
-        }
+      .pair.single {
+        grid-template-columns: minmax(0, 1fr);
       }
       .partial {
         color: var(--ochre);
@@ -180,14 +178,26 @@ export class FfEvidence extends LitElement {
         this.figures = { curves: null, diffs: null, seeds: null };
         return;
       }
-      const full = Math.max(420, Math.min(this.width, 1400) - 34);
-      const half = this.width > 1000 ? Math.max(380, Math.floor((this.width - 16) / 2) - 34) : full;
+      // Presenter view draws at a smaller logical width; the SVG is scaled up to the
+      // column, so its text grows with the page's.
+      const zoom = this.presenter ? 1.35 : 1;
+      const side = this.sideBySide();
+      const full = Math.round(Math.max(420, Math.min(this.width, 1400) - 34) / zoom);
+      const half = side ? Math.round(Math.max(380, Math.floor((this.width - 16) / 2) - 34) / zoom) : full;
+      const pairs = new Set(view.diffs.map((d) => d.pair)).size;
+      // Side by side, the two smaller figures share a height.
+      const height = side && pairs <= 1 ? 320 : undefined;
       this.figures = {
         curves: extrapolationFigure(view, { width: full, logY: this.logY }),
-        diffs: view.diffs.length ? differenceFigure(view, { width: half }) : null,
-        seeds: seedFigure(view, { width: half, logY: this.logY }),
+        diffs: view.diffs.length ? differenceFigure(view, { width: half, ...(height ? { height } : {}) }) : null,
+        seeds: seedFigure(view, { width: half, logY: this.logY, ...(height ? { height } : {}) }),
       };
     }
+  }
+
+  /** Figures 2 and 3 side by side when there is room. */
+  private sideBySide(): boolean {
+    return this.width >= (this.presenter ? 1250 : 1000);
   }
 
   override render() {
@@ -202,7 +212,7 @@ export class FfEvidence extends LitElement {
     const h = v.headline;
     return html`${h
         ? html`<div class="answer" data-kind=${h.kind} data-headline>
-            <span class="a" aria-hidden="true">∴</span>
+            <span class="a">Answer so far</span>
             <span class="text">At n = ${h.size}${h.scale !== 1 ? ` (weights ×${h.scale})` : ''}: ${h.text}</span>
             <span class="sub">${h.pair} on the farthest rung (depth ${num(h.depthMean, 2)}); ${h.detail}.</span>
           </div>`
@@ -221,7 +231,7 @@ export class FfEvidence extends LitElement {
           .figure=${this.figures.curves}
           caption=${`Per arm, the mean over seeds of the ${v.metricLabel}, with a 95% bootstrap interval; ◇ marks the error on held-out graphs of the training sizes. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
         ></ff-figure>
-        <div class="pair">
+        <div class=${this.sideBySide() ? 'pair' : 'pair single'}>
           ${this.figures.diffs
             ? html`<ff-figure
                 .number=${2}

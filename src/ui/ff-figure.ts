@@ -61,7 +61,7 @@ export class FfFigure extends LitElement {
         margin-top: 0.5em;
       }
       .plot svg {
-        max-width: 100%;
+        width: 100%;
         height: auto;
         display: block;
       }

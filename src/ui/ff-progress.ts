@@ -19,6 +19,11 @@ export class FfProgress extends LitElement {
       :host {
         display: block;
       }
+      .plan {
+        margin: 0.8em 0 0;
+        color: var(--muted);
+        max-width: 60em;
+      }
       .overall {
         display: flex;
         flex-wrap: wrap;
@@ -151,6 +156,13 @@ export class FfProgress extends LitElement {
   override render() {
     const v = this.view;
     if (!v || v.total === 0) return null;
+    const untouched = this.state !== 'running' && v.rows.every((r) => r.phase === 'waiting');
+    if (untouched) {
+      return html`<p class="plan" data-plan>
+        ${v.total} runs planned: ${v.arms.length} arms × ${v.seeds.length} seed${v.seeds.length === 1 ? '' : 's'}. Each run trains one arm on one seed's graphs,
+        then scores it on every rung of the ladder; the arms of a seed share graphs and initial weights, so they are compared in pairs.
+      </p>`;
+    }
     const percent = Math.round(v.fraction * 100);
     const columns = `auto repeat(${v.arms.length}, minmax(15em, 1fr))`;
     return html`<div class="overall">

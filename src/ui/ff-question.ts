@@ -37,7 +37,7 @@ export class FfQuestion extends LitElement {
       }
       textarea {
         width: 100%;
-        resize: vertical;
+        resize: none;
         border: 1px solid transparent;
         background: transparent;
         padding: 0.1em 0.2em;

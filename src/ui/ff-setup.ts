@@ -46,17 +46,22 @@ export class FfSetup extends LitElement {
         color: var(--ink);
       }
       .sentence {
-        line-height: 2.15;
+        line-height: 2.05;
         font-size: 1em;
       }
+      input,
+      select {
+        min-height: 1.75em;
+        padding-block: 0.1em;
+      }
       input[type='number'] {
-        width: 5.2em;
+        width: 4.4em;
       }
       input.wide {
         width: 9em;
       }
       input.list {
-        width: 8.5em;
+        width: 8em;
         font-family: var(--mono);
         font-size: 0.92em;
       }

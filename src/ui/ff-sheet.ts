@@ -175,7 +175,7 @@ export class FfSheet extends LitElement {
           </p>`
         : nothing}
 
-      <section class="part q" aria-label="Question">
+      <section class="part q" aria-label="The question and what is expected">
         <ff-question question=${m.draft.question} expectation=${m.draft.expectation} ?disabled=${running} ?invalid=${invalid.has('question')}></ff-question>
       </section>
 

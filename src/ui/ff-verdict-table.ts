@@ -70,6 +70,11 @@ export class FfVerdictTable extends LitElement {
       .shift {
         color: var(--muted);
         font-size: 0.88em;
+        white-space: normal;
+        min-width: 7em;
+      }
+      th {
+        white-space: normal;
       }
       .verdict {
         font-weight: 700;
@@ -161,7 +166,7 @@ export class FfVerdictTable extends LitElement {
             ${this.verdicts.map(
               (v) => html`<tr data-size=${v.size}>
                 <td class="l num">n = ${v.size}${v.scale !== 1 ? html`, ×${v.scale}` : nothing}${v.inTrainingRange ? html`<span class="star" title="inside the training size range">*</span>` : nothing}</td>
-                <td class="l shift">depth ${num(v.depthMean, 2)} · degree ${num(v.meanDegree, 2)}</td>
+                <td class="l shift">depth ${num(v.depthMean, 2)} · <wbr />degree ${num(v.meanDegree, 2)}</td>
                 <td class="l"><span style=${`color: ${this.colorOf(v.a)}`}>${v.a}</span> vs <span style=${`color: ${this.colorOf(v.b)}`}>${v.b}</span></td>
                 <td class="num">${v.n ? num(v.meanA) : '—'}</td>
                 <td class="num">${v.n ? num(v.meanB) : '—'}</td>

@@ -15,6 +15,8 @@ export interface FigureOptions {
   width: number;
   /** Log scale for errors (only honoured when every value is positive). */
   logY?: boolean;
+  /** Fixed height (figures shown side by side share one). */
+  height?: number;
 }
 
 const style = (fontSize: number) => ({ fontFamily: FIGURE_FONT, fontSize: `${fontSize}px`, background: 'transparent', color: INK, overflow: 'visible' });
@@ -65,7 +67,7 @@ export function extrapolationFigure(view: EvidenceView, options: FigureOptions):
   const facet = scales ? { fx: (d: CurvePoint) => `weights ×${d.scale}` } : {};
   return Plot.plot({
     width: options.width,
-    height: Math.round(options.width * 0.5),
+    height: Math.round(Math.min(520, Math.max(300, options.width * 0.4))),
     marginLeft: 64,
     marginBottom: 56,
     marginTop: scales ? 36 : 30,
@@ -116,7 +118,7 @@ export function differenceFigure(view: EvidenceView, options: FigureOptions): SV
   };
   return Plot.plot({
     width: options.width,
-    height: Math.max(220, (facetRows ? pairs.length * 150 : 260) + 40),
+    height: options.height ?? Math.max(240, facetRows ? pairs.length * 150 + 60 : 320),
     marginLeft: 64,
     marginBottom: 56,
     marginRight: facetRows ? 110 : 24,
@@ -155,7 +157,7 @@ export function seedFigure(view: EvidenceView, options: FigureOptions): SVGSVGEl
   const order = [...new Set(view.seeds.slice().sort((a, b) => a.size - b.size || a.scale - b.scale).map(label))];
   return Plot.plot({
     width: options.width,
-    height: Math.round(options.width * 0.42),
+    height: options.height ?? Math.round(Math.min(380, Math.max(260, options.width * 0.42))),
     marginLeft: 64,
     marginBottom: 44,
     marginTop: 34,

@@ -66,7 +66,7 @@ function rowFor(track: RunTrack, state: RunSnapshot['state'], now: number): RunR
     }
     case 'ok':
       status = 'done';
-      detail = track.kept ? 'kept from an earlier visit' : `${track.step} steps`;
+      detail = track.kept ? 'kept from an earlier visit' : `${track.step} steps in ${duration(track.seconds ?? NaN)}`;
       break;
     case 'diverged':
       status = 'diverged';

@@ -26,6 +26,8 @@ export interface RunTrack {
   losses: number[];
   startedAt: number | null;
   finishedAt: number | null;
+  /** Wall time of a finished run, as the worker measured it. */
+  seconds?: number;
   reason?: string;
 }
 
@@ -77,6 +79,7 @@ function finishedTrack(plan: RunPlan, result: RunResult, kept: boolean, now: num
     losses: result.lossCurve.filter((x) => Number.isFinite(x)),
     startedAt: null,
     finishedAt: now,
+    seconds: result.seconds,
     ...(result.reason ? { reason: result.reason } : {}),
   };
 }

@@ -132,7 +132,7 @@ export const sectionHead = css`
     gap: 0.6em;
     margin: 0 0 0.8em;
     font-family: var(--sans);
-    font-size: 0.8em;
+    font-size: 0.86em;
     font-weight: 700;
     letter-spacing: 0.12em;
     text-transform: uppercase;

@@ -74,6 +74,10 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     if (!context) contexts.push(ctx);
     const page = await ctx.newPage();
     page.on('pageerror', (e) => pageErrors.push(`${path}: ${e.message}`));
+    // A Content-Security-Policy refusal is only a console message: count it as an error too.
+    page.on('console', (m) => {
+      if (m.type() === 'error' && /Content Security Policy|Refused to/i.test(m.text())) pageErrors.push(`${path}: ${m.text()}`);
+    });
     await page.goto(site.url + path);
     await page.waitForSelector('ff-sheet[data-ready="yes"]', { timeout: 30_000 });
     return page;
@@ -130,6 +134,30 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     // What shifted, next to the node counts.
     expect(await evidence.locator('ff-verdict-table tbody tr').first().textContent()).toMatch(/depth [\d.]+ · degree [\d.]+/);
     await page.screenshot({ path: join(SHOTS, 'sheet-quick-run.png'), fullPage: true });
+
+    // Exports: every figure as SVG and PNG; results as the CLI's JSON document and as CSV.
+    const saved = async (click: () => Promise<void>) => {
+      const [download] = await Promise.all([page.waitForEvent('download'), click()]);
+      const path = join(SHOTS, download.suggestedFilename());
+      await download.saveAs(path);
+      return { name: download.suggestedFilename(), bytes: readFileSync(path) };
+    };
+    const svg = await saved(() => page.getByRole('button', { name: 'Export figure 1 as SVG' }).click());
+    expect(svg.name).toMatch(/-curves\.svg$/);
+    expect(svg.bytes.toString('utf8')).toMatch(/^<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+    const png = await saved(() => page.getByRole('button', { name: 'Export figure 2 as PNG' }).click());
+    expect([...png.bytes.subarray(0, 4)]).toEqual([0x89, 0x50, 0x4e, 0x47]);
+    const json = await saved(() => page.locator('ff-share button[data-action="export-json"]').click());
+    const doc = JSON.parse(json.bytes.toString('utf8')) as { kind: string; engine: { host: string }; fingerprint: string; runs: unknown[]; complete: boolean };
+    expect(doc.kind).toBe('farfield-results');
+    expect(doc.engine.host).toBe('browser');
+    expect(doc.complete).toBe(true);
+    expect(doc.runs).toHaveLength(4);
+    expect(doc.fingerprint).toBe(await fingerprint(page));
+    const csv = await saved(() => page.locator('ff-share button[data-action="export-csv"]').click());
+    const lines = csv.bytes.toString('utf8').trim().split('\n');
+    expect(lines[0]).toMatch(/^spec_hash,run,arm,seed,status/);
+    expect(lines).toHaveLength(1 + 4 * (1 + 3));
   }, 150_000);
 
   it('opens a share link without running it, and its run gives the CLI fingerprint', async () => {
@@ -160,7 +188,7 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     const page = await open(fragment, context);
     await page.getByLabel('Workers (runs at a time)').selectOption('1');
     await runButton(page).click();
-    await expect.poll(() => cells(page, 'ok').count(), { timeout: 60_000, intervals: [100] }).toBeGreaterThanOrEqual(2);
+    await expect.poll(() => cells(page, 'ok').count(), { timeout: 60_000, interval: 100 }).toBeGreaterThanOrEqual(2);
     await page.locator('ff-run-controls button[data-action="cancel"]').click();
     await waitState(page, 'cancelled', 2_000);
     const kept = await cells(page, 'ok').count();
@@ -185,6 +213,34 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     expect(await page.locator('ff-progress .cell[data-kept="yes"]').count()).toBe(kept);
     expect(await fingerprint(page)).toMatch(/^[0-9a-f]{12}$/);
   }, 150_000);
+
+  it('gives every control an accessible name', async () => {
+    const page = await open('');
+    // Walks every shadow root: inputs, selects, textareas and buttons need a label, aria-label(ledby) or text.
+    const unnamed = (await page.evaluate(`(() => {
+      const missing = [];
+      function walk(root) {
+        for (const el of root.querySelectorAll('input, select, textarea, button')) {
+          const text = el.tagName === 'BUTTON' ? el.textContent.trim() : '';
+          const labelled = el.getAttribute('aria-label') || el.getAttribute('aria-labelledby') || (el.labels && el.labels.length > 0) || text;
+          if (!labelled) missing.push(el.outerHTML.slice(0, 120));
+        }
+        for (const el of root.querySelectorAll('*')) if (el.shadowRoot) walk(el.shadowRoot);
+      }
+      walk(document);
+      return missing;
+    })()`)) as string[];
+    expect(unnamed).toEqual([]);
+    // Keyboard: Tab reaches the Run button through the setup and arm fields.
+    const deepFocus = `(() => { let a = document.activeElement; while (a && a.shadowRoot && a.shadowRoot.activeElement) a = a.shadowRoot.activeElement; return a ? (a.getAttribute('data-action') || a.tagName) : ''; })()`;
+    let reached = false;
+    for (let i = 0; i < 120 && !reached; i++) {
+      await page.keyboard.press('Tab');
+      reached = (await page.evaluate(deepFocus)) === 'run';
+    }
+    expect(reached).toBe(true);
+    expect(await state(page)).toBe('idle');
+  }, 30_000);
 
   it('shows a clear error and the default sheet for a corrupted share link', async () => {
     for (const bad of [`#${quickFragment.slice(0, 60)}`, '#ff1.this-is-not-a-farfield-link!', '#ff9.AAAA']) {
@@ -217,7 +273,7 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     expect(await runButton(page).textContent()).toContain('Run the 2 missing runs');
   }, 120_000);
 
-  it('raised no uncaught page errors', () => {
+  it('raised no uncaught page errors and no Content-Security-Policy refusals', () => {
     expect(pageErrors).toEqual([]);
   });
 });

@@ -74,7 +74,7 @@ describe('aggregator audit (the algebra of each aggregator; common practice)', (
     expect(row(rows, 'chunked aggregation').pass).toBe(true);
   });
 
-  it('smooth-max (log-sum-exp): a ⊕ a = a + τ·log 2 exactly (log(e^{a/τ} + e^{a/τ}) = a/τ + log 2; Boyd & Vandenberghe, Convex Optimization, 2004, §3.1.5)', () => {
+  it('smooth-max (log-sum-exp): a ⊕ a = a + τ·log 2 exactly (elementary: τ·log(2e^{a/τ}) = a + τ·log 2; common practice)', () => {
     for (const tau of [0.25, 1, 3]) {
       const rows = auditAggregator('smooth-max', tau, { trials: 6 });
       const idem = row(rows, 'idempotence');
@@ -122,7 +122,9 @@ describe('network audit', () => {
   it('with biases the homogeneity residual is large and only reported (so the check can fail)', () => {
     const net = new MessagePassingNetwork(model({ aggregator: 'sum', bias: true }), 1, 1, new Rng(2));
     for (const [name, v] of net.params.vars) if (/\.b|w2/.test(name)) net.params.set(name, Array.from({ length: v.size }, () => 0.3));
+    const before = tf.memory().numTensors;
     const rows = auditNetwork(net, identity, graphs(4, 4), { schedules: 1 });
+    expect(tf.memory().numTensors).toBe(before);
     const homogeneity = row(rows, 'positive homogeneity');
     expect(homogeneity.worst).toBeGreaterThan(1e-2);
     expect(homogeneity.pass).toBeNull();
@@ -133,7 +135,7 @@ describe('network audit', () => {
     net.dispose();
   });
 
-  it('Bellman-Ford as a network: neutral message, monoid action and asynchronous replay all hold (chaotic relaxation; Bertsekas & Tsitsiklis, Parallel and Distributed Computation, 1989, §6.2)', () => {
+  it('Bellman-Ford as a network: neutral message, monoid action and asynchronous replay all hold (chaotic relaxation; Bertsekas & Tsitsiklis, Parallel and Distributed Computation, 1989, ch. 6)', () => {
     const net = bellmanFordNetwork();
     const before = tf.memory().numTensors;
     const rows = auditNetwork(net, identity, graphs(6, 9, 9), { schedules: 2 });

@@ -171,4 +171,18 @@ describe('probe bookkeeping', () => {
     const merged = meanAudit([[{ ...row, mean: 0, worst: 0, pass: true }], [{ ...row, mean: 2, worst: 4, pass: false }]]);
     expect(merged[0]).toMatchObject({ mean: 1, worst: 4, pass: false, samples: 2 });
   });
+
+  it('probeSummary divides by the own truth of each point, even on a log-scale sweep', () => {
+    const probe: Probe = {
+      kind: 'scale', title: 't', xLabel: 'x', yLabel: 'y', xScale: 'log', trainingRange: [1, 1], note: 'n',
+      points: [
+        { x: 0.01, predicted: 0.02, truth: 0.01, mae: 0.01 },
+        { x: 1, predicted: 1.1, truth: 1, mae: 0.1 },
+        { x: 100, predicted: 110, truth: 100, mae: 10 },
+      ],
+    };
+    const s = probeSummary(probe);
+    expect(s.worstOutside).toEqual({ x: 0.01, relative: 1 });
+    expect(s.worstInside!.relative).toBeCloseTo(0.1, 12);
+  });
 });
