@@ -388,7 +388,7 @@ export interface RunProbes {
 }
 
 export interface ProbeRunOptions {
-  /** Graphs for the scale probe, update audits and message probe. */
+  /** Graphs for the scale probe (default 8); the network audit uses this many validation graphs, at least 8. */
   graphs?: number;
 }
 
