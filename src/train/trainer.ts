@@ -6,7 +6,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import type { MessagePassingNetwork } from '../model/network.ts';
-import { trainingStepsFor } from '../model/steps.ts';
+import { stepsFor, trainingStepsFor } from '../model/steps.ts';
 import type { Rng } from '../util/rng.ts';
 import { makeBatch, type FeatureTransforms } from './batch.ts';
 import { uploadBatch } from './tensors.ts';
@@ -64,6 +64,10 @@ export function train(args: TrainArgs): TrainOutcome {
   let lastFiniteLoss: number | null = null;
   let pool: number[] = [];
   let best = { value: Infinity, step: 0, weights: null as Map<string, Float32Array> | null };
+  const rule = network.options.steps;
+  const validationNodes = args.validation.reduce((m, inst) => Math.max(m, inst.nodes), 0);
+  const validationSteps =
+    rule.rule === 'until-stable' ? undefined : Math.min(stepsFor(rule, validationNodes) + rule.trainJitter, rule.cap);
   const outcome: TrainOutcome = { status: 'ok', stepsDone: 0, lossCurve, lossEvery, lastFiniteLoss: null, keptStep: 0 };
 
   const nextBatch = (): TaskInstance[] => {
@@ -134,7 +138,9 @@ export function train(args: TrainArgs): TrainOutcome {
       }
       args.onProgress?.({ step, totalSteps, loss: lossValue });
       if (validateEvery > 0 && (step % validateEvery === 0 || step === totalSteps)) {
-        const { metrics } = evaluateSet(network, args.validation, transforms);
+        // Score at the most steps training used: the kept weights must stay right when run for
+        // longer than the graph needs, since larger test graphs get more steps.
+        const { metrics } = evaluateSet(network, args.validation, transforms, { steps: validationSteps });
         if (metrics.mae < best.value) {
           best = { value: metrics.mae, step, weights: network.params.snapshot() };
         }
