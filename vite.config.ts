@@ -13,7 +13,16 @@ export default defineConfig({
   preview: { headers: isolation, host: '127.0.0.1' },
   worker: { format: 'es' },
   // Excluding the WASM backend from pre-bundling breaks one of its exports.
-  optimizeDeps: { include: ['@tensorflow/tfjs-backend-wasm'] },
+  optimizeDeps: {
+    include: [
+      '@tensorflow/tfjs-backend-wasm',
+      // Found only when a run starts (inside the worker); listed so the dev server does not reload the page mid-run to add them.
+      '@tensorflow/tfjs-core',
+      '@tensorflow/tfjs-backend-cpu',
+      '@tensorflow/tfjs-core/dist/register_all_gradients',
+      '@tensorflow/tfjs-core/dist/public/chained_ops/register_all_chained_ops',
+    ],
+  },
   build: { target: 'es2022', outDir: 'dist', assetsInlineLimit: 0 },
   test: {
     include: ['test/**/*.test.ts'],

@@ -1,6 +1,7 @@
 /**
  * Micro-benchmark of the engine's graph ops and matmul patch.
  * Run: npx tsx bench/ops-bench.ts [--quick] [--matmul-only]
+ * (`npm run bench` is the whole-system benchmark; this one isolates the kernel patches.)
  *
  * Reference workload (DESIGN.md "Facts measured"): hidden 32, 16 message-passing
  * steps, a batch of 32 graphs x 16 nodes (disjoint union, ~4 in-edges per node),
@@ -19,6 +20,7 @@ import { patchWasmIdentity, unpatchWasmIdentity } from '../src/engine/kernels-id
 import { patchWasmMatMul, unpatchWasmMatMul } from '../src/engine/kernels-matmul.ts';
 import { gatherRows, segmentMax, segmentSum } from '../src/model/ops.ts';
 import { Rng } from '../src/util/rng.ts';
+import { gflops, matmulSample, timeIt } from './measure.ts';
 
 const quick = process.argv.includes('--quick');
 const HIDDEN = 32;
@@ -195,18 +197,6 @@ async function trainSpeeds(variants: Variant[], seconds: number, rounds: number)
   return out;
 }
 
-/** Mean ms per call. Callers never return a TypedArray from tf.tidy (tidy walks it element by element). */
-function timeIt(f: () => void, minMs: number): number {
-  f();
-  let n = 0;
-  const t0 = performance.now();
-  while (performance.now() - t0 < minMs) {
-    f();
-    n++;
-  }
-  return (performance.now() - t0) / n;
-}
-
 async function denseBench(): Promise<void> {
   await initBackend('wasm');
   const rng = new Rng(3);
@@ -228,16 +218,16 @@ async function denseBench(): Promise<void> {
   console.log(`  dense 512x32@32x32 fwd+bwd:  stock ${(stock * 1000).toFixed(0)} us, patched ${(patched * 1000).toFixed(0)} us  (${(stock / patched).toFixed(2)}x)`);
   console.log(`  x^T·x (32x512 @ 512x32):     stock ${(stockT * 1000).toFixed(0)} us, patched ${(patchedT * 1000).toFixed(0)} us  (${(stockT / patchedT).toFixed(2)}x)`);
 
+  const untransposed = gflops([matmulSample(256, ms)]);
   const a = tf.randomNormal([256, 256], 0, 1, 'float32', 1) as tf.Tensor2D;
   const b = tf.randomNormal([256, 256], 0, 1, 'float32', 2) as tf.Tensor2D;
   const flops = 2 * 256 ** 3;
-  const mm = timeIt(() => tf.tidy(() => void tf.matMul(a, b).dataSync()), ms);
   const mmT = timeIt(() => tf.tidy(() => void tf.matMul(a, b, false, true).dataSync()), ms);
   unpatchWasmMatMul();
   const mmTStock = timeIt(() => tf.tidy(() => void tf.matMul(a, b, false, true).dataSync()), ms);
   patchWasmMatMul();
   console.log(
-    `  matmul 256^3: ${(flops / mm / 1e6).toFixed(1)} GFLOP/s untransposed; a·bᵀ ${(flops / mmT / 1e6).toFixed(1)} GFLOP/s patched, ` +
+    `  matmul 256^3: ${untransposed.toFixed(1)} GFLOP/s untransposed; a·bᵀ ${(flops / mmT / 1e6).toFixed(1)} GFLOP/s patched, ` +
       `${(flops / mmTStock / 1e6).toFixed(1)} GFLOP/s stock`,
   );
   tf.dispose([x, w, a, b]);

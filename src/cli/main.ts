@@ -6,6 +6,7 @@ import { commandCheck } from './commands/check.ts';
 import { commandSample } from './commands/sample.ts';
 import { commandProbe } from './commands/probe.ts';
 import { commandMerge } from './commands/merge.ts';
+import { commandBench } from './commands/bench.ts';
 import { commandShare } from './commands/share.ts';
 
 export class UsageError extends Error {}
@@ -26,6 +27,8 @@ Commands:
       print a share link carrying the whole spec (open it in the sheet, or pass it to run)
   merge part-1.json part-2.json ... [--out FILE] [--json]
       combine shard results (run --shard i/N) and recompute the statistics
+  bench [--quick] [--json] [--presets a,b | --skip-presets] [--long-steps N] [--seconds S] [--workers K]
+      measure WASM vs CPU training speed, FLOP/s, worker scaling, preset wall times and tensor leaks; check the speed targets
 
 Exit codes: 0 done, 1 bad input or failed command, 2 usage error.`;
 
@@ -38,6 +41,7 @@ const COMMANDS: Record<string, Command> = {
   probe: commandProbe,
   merge: commandMerge,
   share: commandShare,
+  bench: commandBench,
 };
 
 export async function main(argv: string[]): Promise<number> {

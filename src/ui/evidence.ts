@@ -79,6 +79,14 @@ export interface VerdictRow {
   caveats: string[];
 }
 
+/** One rung's arms from lowest to highest mean error (sweeps and many-arm experiments). */
+export interface RankingRow {
+  size: number;
+  scale: number;
+  depthMean: number;
+  order: Array<{ arm: string; color: string; mean: number; low: number; high: number; n: number }>;
+}
+
 export interface CaveatNote {
   text: string;
   /** Where it applies, e.g. "n = 64 (max vs sum)"; empty when it applies everywhere. */
@@ -119,6 +127,7 @@ export interface EvidenceView {
   seeds: SeedPoint[];
   ladder: LadderRow[];
   verdicts: VerdictRow[];
+  rankings: RankingRow[];
   caveats: CaveatNote[];
   failures: FailureNote[];
   headline: Headline | null;
@@ -141,11 +150,23 @@ export function buildEvidence(doc: ResultsDocument): EvidenceView {
   const seeds: SeedPoint[] = [];
   const ladder: LadderRow[] = [];
   const verdicts: VerdictRow[] = [];
-  const caveatMap = new Map<string, Set<string>>();
+  const rankings: RankingRow[] = [];
+  /** caveat text → pair → rung labels it applies to. */
+  const caveatMap = new Map<string, Map<string, string[]>>();
   let pairSlots = 0;
 
   for (const rung of comparison.rungs) {
     ladder.push({ size: rung.size, scale: rung.scale, depthMean: rung.depthMean, meanDegree: rung.meanDegree, inTrainingRange: rung.inTrainingRange });
+    const byName = new Map(rung.arms.map((a) => [a.arm, a]));
+    rankings.push({
+      size: rung.size,
+      scale: rung.scale,
+      depthMean: rung.depthMean,
+      order: rung.ranking
+        .map((name) => byName.get(name))
+        .filter((a): a is NonNullable<typeof a> => a !== undefined && a.summary.n > 0)
+        .map((a) => ({ arm: a.arm, color: armColor(a.armIndex), mean: a.summary.mean, low: a.summary.meanLow, high: a.summary.meanHigh, n: a.summary.n })),
+    });
     for (const arm of rung.arms) {
       if (arm.summary.n > 0) {
         curves.push({
@@ -202,16 +223,19 @@ export function buildEvidence(doc: ResultsDocument): EvidenceView {
         caveats: v.caveats,
       });
       for (const caveat of v.caveats) {
-        if (!caveatMap.has(caveat)) caveatMap.set(caveat, new Set());
-        caveatMap.get(caveat)!.add(`${sizeLabel(rung.size, rung.scale)} (${pair.a} vs ${pair.b})`);
+        const byPair = caveatMap.get(caveat) ?? new Map<string, string[]>();
+        caveatMap.set(caveat, byPair);
+        const pairName = `${pair.a} vs ${pair.b}`;
+        byPair.set(pairName, [...(byPair.get(pairName) ?? []), rung.scale === 1 ? String(rung.size) : `${rung.size} ×${rung.scale}`]);
       }
     }
   }
 
   const caveats: CaveatNote[] = [...caveatMap.entries()]
-    .map(([text, where]) => ({
+    .map(([text, byPair]) => ({
       text,
-      where: where.size >= pairSlots ? [] : [...where],
+      // "n = 12, 48 (max vs sum)"; nothing when it applies to every rung and pair.
+      where: [...byPair.values()].reduce((sum, rungs) => sum + rungs.length, 0) >= pairSlots ? [] : [...byPair.entries()].map(([pairName, rungs]) => `n = ${rungs.join(', ')} (${pairName})`),
       tooFewSeeds: /smallest possible two-sided signed-rank p|No complete seed pairs/.test(text),
     }))
     .sort((x, y) => Number(y.tooFewSeeds) - Number(x.tooFewSeeds));
@@ -264,6 +288,7 @@ export function buildEvidence(doc: ResultsDocument): EvidenceView {
     seeds,
     ladder,
     verdicts,
+    rankings,
     caveats,
     failures,
     headline,

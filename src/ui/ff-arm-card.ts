@@ -63,11 +63,15 @@ export class FfArmCard extends LitElement {
       }
       .tools {
         display: flex;
-        gap: 0;
+        justify-content: flex-end;
+        gap: 0.2em;
+        margin-top: 0.6em;
+        padding-top: 0.4em;
+        border-top: 1px solid var(--rule);
       }
       .tools button {
-        font-size: 0.8em;
-        padding-inline: 0.35em;
+        font-size: 0.82em;
+        padding-inline: 0.5em;
       }
       textarea {
         width: 100%;
@@ -79,7 +83,7 @@ export class FfArmCard extends LitElement {
       }
       dl {
         display: grid;
-        grid-template-columns: 6.6em 1fr;
+        grid-template-columns: 7.3em 1fr;
         gap: 0.3em 0.6em;
         margin: 0;
         align-items: start;
@@ -130,7 +134,7 @@ export class FfArmCard extends LitElement {
         max-width: 100%;
       }
       input[type='number'] {
-        width: 4.6em;
+        width: 5.2em;
       }
       .hint {
         font-size: 0.8em;
@@ -236,17 +240,6 @@ export class FfArmCard extends LitElement {
           ?disabled=${this.disabled}
           @change=${(e: Event) => emit(this, 'ff-edit', { kind: 'arm-name', arm: v.index, name: (e.target as HTMLInputElement).value })}
         />
-        <span class="tools">
-          <button type="button" class="quiet" title="Duplicate this arm" aria-label=${`Duplicate arm ${v.name}`} ?disabled=${this.disabled} @click=${() => emit(this, 'ff-edit', { kind: 'arm-duplicate', arm: v.index })}>duplicate</button>
-          <button
-            type="button"
-            class="quiet"
-            title=${v.canRemove ? 'Remove this arm' : 'An experiment needs at least two arms'}
-            aria-label=${`Remove arm ${v.name}`}
-            ?disabled=${this.disabled || !v.canRemove}
-            @click=${() => emit(this, 'ff-edit', { kind: 'arm-remove', arm: v.index })}
-          >remove</button>
-        </span>
       </div>
       <textarea
         rows="1"
@@ -291,6 +284,23 @@ export class FfArmCard extends LitElement {
             />${m.bias ? 'every layer has a bias' : 'bias-free (homogeneous)'}</label
           >`,
         )}
+        ${this.row(
+          'learningRate',
+          'Learning rate',
+          html`<input
+            type="number"
+            step="any"
+            placeholder=${String(v.sharedLearningRate)}
+            aria-label=${`Learning rate (empty: the budget's), arm ${v.name}`}
+            aria-invalid=${this.bad('learningRate')}
+            .value=${v.learningRate === undefined ? '' : String(v.learningRate)}
+            ?disabled=${this.disabled}
+            @change=${(e: Event) => {
+              const text = (e.target as HTMLInputElement).value.trim();
+              emit(this, 'ff-edit', { kind: 'arm-learning-rate', arm: v.index, value: text === '' ? undefined : parseNumber(text) });
+            }}
+          /><span class="inherit">${v.learningRate === undefined ? 'as the budget' : 'this arm only'}</span>`,
+        )}
         ${this.row('hidden', 'Hidden width', this.numberInput('Hidden width', m.hidden, 'model.hidden', (x) => this.switchEdit('hidden', x), '1'))}
         ${this.row('nodeTransform', 'Node input', this.transforms('nodeTransform', v.nodeFeatures, m.nodeTransform))}
         ${this.row('edgeTransform', 'Edge input', this.transforms('edgeTransform', v.edgeFeatures, m.edgeTransform))}
@@ -319,6 +329,17 @@ export class FfArmCard extends LitElement {
             >`,
         )}
       </dl>
+      <div class="tools">
+        <button type="button" class="quiet" title="Duplicate this arm" aria-label=${`Duplicate arm ${v.name}`} ?disabled=${this.disabled} @click=${() => emit(this, 'ff-edit', { kind: 'arm-duplicate', arm: v.index })}>duplicate</button>
+        <button
+          type="button"
+          class="quiet"
+          title=${v.canRemove ? 'Remove this arm' : 'An experiment needs at least two arms'}
+          aria-label=${`Remove arm ${v.name}`}
+          ?disabled=${this.disabled || !v.canRemove}
+          @click=${() => emit(this, 'ff-edit', { kind: 'arm-remove', arm: v.index })}
+        >remove</button>
+      </div>
     </article>`;
   }
 }

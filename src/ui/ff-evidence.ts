@@ -11,6 +11,7 @@ import { num } from './format.ts';
 import { controls } from './styles.ts';
 import './ff-figure.ts';
 import './ff-verdict-table.ts';
+import './ff-probes.ts';
 
 export class FfEvidence extends LitElement {
   static override properties = {
@@ -25,6 +26,8 @@ export class FfEvidence extends LitElement {
   declare logY: boolean;
 
   private figures: { curves: Element | null; diffs: Element | null; seeds: Element | null } = { curves: null, diffs: null, seeds: null };
+  /** Bumped on every redraw, so a stale deferred figure is dropped. */
+  private generation = 0;
   private resize: ResizeObserver | null = null;
 
   static override styles = [
@@ -67,6 +70,15 @@ export class FfEvidence extends LitElement {
       .answer .sub {
         font-size: 0.95em;
         opacity: 0.85;
+      }
+      .answer .fp {
+        font-size: 0.85em;
+        opacity: 0.75;
+        margin-top: 0.2em;
+      }
+      .answer code {
+        font-family: var(--mono);
+        letter-spacing: 0.04em;
       }
       .answer[data-kind='too-few-seeds'] .text {
         color: #f3d28b;
@@ -175,6 +187,7 @@ export class FfEvidence extends LitElement {
     if (changed.has('evidence') || changed.has('width') || changed.has('logY') || changed.has('presenter')) {
       const view = this.evidence;
       if (!view || view.curves.length === 0) {
+        this.generation++;
         this.figures = { curves: null, diffs: null, seeds: null };
         return;
       }
@@ -187,11 +200,20 @@ export class FfEvidence extends LitElement {
       const pairs = new Set(view.diffs.map((d) => d.pair)).size;
       // Side by side, the two smaller figures share a height.
       const height = side && pairs <= 1 ? 320 : undefined;
-      this.figures = {
-        curves: extrapolationFigure(view, { width: full, logY: this.logY }),
-        diffs: view.diffs.length ? differenceFigure(view, { width: half, ...(height ? { height } : {}) }) : null,
-        seeds: seedFigure(view, { width: half, logY: this.logY, ...(height ? { height } : {}) }),
-      };
+      // The first figure now; the other two in later tasks, so no single task holds the page for long.
+      const generation = ++this.generation;
+      this.figures = { ...this.figures, curves: extrapolationFigure(view, { width: full, logY: this.logY }) };
+      const later = (build: () => Partial<FfEvidence['figures']>, then?: () => void) =>
+        setTimeout(() => {
+          if (generation !== this.generation) return;
+          this.figures = { ...this.figures, ...build() };
+          this.requestUpdate();
+          then?.();
+        }, 0);
+      later(
+        () => ({ diffs: view.diffs.length ? differenceFigure(view, { width: half, ...(height ? { height } : {}) }) : null }),
+        () => later(() => ({ seeds: seedFigure(view, { width: half, logY: this.logY, ...(height ? { height } : {}) }) })),
+      );
     }
   }
 
@@ -215,6 +237,7 @@ export class FfEvidence extends LitElement {
             <span class="a">Answer so far</span>
             <span class="text">At n = ${h.size}${h.scale !== 1 ? ` (weights ×${h.scale})` : ''}: ${h.text}</span>
             <span class="sub">${h.pair} on the farthest rung (depth ${num(h.depthMean, 2)}); ${h.detail}.</span>
+            ${v.complete ? html`<span class="fp">All ${v.runsExpected} runs in · results fingerprint <code>${v.fingerprint}</code></span>` : nothing}
           </div>`
         : nothing}
       ${v.complete ? nothing : html`<p class="partial">Partial evidence: ${v.runsDone} of ${v.runsExpected} runs in. Verdicts use complete seed pairs only.</p>`}
@@ -232,7 +255,7 @@ export class FfEvidence extends LitElement {
           caption=${`Per arm, the mean over seeds of the ${v.metricLabel}, with a 95% bootstrap interval; ◇ marks the error on held-out graphs of the training sizes. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
         ></ff-figure>
         <div class=${this.sideBySide() ? 'pair' : 'pair single'}>
-          ${this.figures.diffs
+          ${v.diffs.length
             ? html`<ff-figure
                 .number=${2}
                 heading="Paired difference per size"
@@ -242,14 +265,14 @@ export class FfEvidence extends LitElement {
               ></ff-figure>`
             : nothing}
           <ff-figure
-            .number=${this.figures.diffs ? 3 : 2}
+            .number=${v.diffs.length ? 3 : 2}
             heading="Every seed"
             name="seeds"
             .figure=${this.figures.seeds}
             caption="Each dot is one trained network; lines join the arms of the same seed, so crossing lines mean the seeds disagree."
           ></ff-figure>
         </div>
-        <ff-verdict-table .verdicts=${v.verdicts} .caveats=${v.caveats} .failures=${v.failures} .arms=${v.arms} metric=${v.metric}></ff-verdict-table>
+        <ff-verdict-table .verdicts=${v.verdicts} .rankings=${v.rankings} .caveats=${v.caveats} .failures=${v.failures} .arms=${v.arms} metric=${v.metric}></ff-verdict-table>
       </div>
       ${this.probes()}`;
   }
@@ -259,7 +282,7 @@ export class FfEvidence extends LitElement {
     return html`<section id="probes" aria-labelledby="probes-h">
       <slot name="probes">
         <h3 id="probes-h">Probes, audit and alignment trace</h3>
-        <p>Learned-versus-true function plots, the audit table and an alignment trace on one small graph will appear here.</p>
+        <ff-probes></ff-probes>
       </slot>
     </section>`;
   }

@@ -37,8 +37,10 @@ export class FfMasthead extends LitElement {
       .brand {
         display: flex;
         align-items: baseline;
-        gap: 0.6em;
+        flex-wrap: wrap;
+        gap: 0 0.6em;
         margin-right: auto;
+        min-width: 0;
       }
       .word {
         font-family: var(--serif);
@@ -66,7 +68,7 @@ export class FfMasthead extends LitElement {
         font-size: 0.9em;
       }
       select {
-        max-width: 22em;
+        max-width: 15em;
       }
       .file {
         position: relative;

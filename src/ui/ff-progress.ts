@@ -42,7 +42,6 @@ export class FfProgress extends LitElement {
       .meter > div {
         height: 100%;
         background: var(--teal);
-        transition: width 0.4s ease;
       }
       .summary {
         font-size: 0.95em;

@@ -58,7 +58,10 @@ export class FfSetup extends LitElement {
         width: 4.4em;
       }
       input.wide {
-        width: 9em;
+        width: 6.2em;
+      }
+      input.list.short {
+        width: 4.4em;
       }
       input.list {
         width: 8em;
@@ -117,10 +120,10 @@ export class FfSetup extends LitElement {
     />`;
   }
 
-  private list(path: Path, values: readonly number[], label: string): TemplateResult {
+  private list(path: Path, values: readonly number[], label: string, short = false): TemplateResult {
     return html`<input
       type="text"
-      class="list"
+      class=${short ? 'list short' : 'list'}
       inputmode="decimal"
       aria-label=${label}
       aria-invalid=${this.bad(path)}
@@ -184,7 +187,7 @@ export class FfSetup extends LitElement {
         on ${this.select(['test', 'family'], d.test.family ?? '', 'Test graph family', [{ value: '', label: 'the same family' }, ...familyChoices])}
         at sizes ${this.list(['test', 'sizes'], d.test.sizes, 'Test sizes (nodes, comma-separated)')} nodes,
         ${this.number(['test', 'graphsPerRung'], d.test.graphsPerRung, 'Test graphs per size', { min: 1 })} graphs per size;
-        scale shift: weights ×${this.list(['test', 'weightScales'], d.test.weightScales, 'Weight scales (comma-separated; 1 = as in training)')};
+        scale shift: weights ×${this.list(['test', 'weightScales'], d.test.weightScales, 'Weight scales (comma-separated; 1 = as in training)', d.test.weightScales.length < 2)};
         validate in distribution on ${this.number(['test', 'validationGraphs'], d.test.validationGraphs, 'Validation graphs', { min: 4 })} graphs.
       </div>
 
@@ -199,7 +202,7 @@ export class FfSetup extends LitElement {
       <div class="sentence">
         ${this.number(['budget', 'steps'], d.budget.steps, 'Training steps', { min: 1 })} steps of
         ${this.number(['budget', 'batchGraphs'], d.budget.batchGraphs, 'Graphs per batch', { min: 1 })} graphs, learning rate
-        ${this.number(['budget', 'learningRate'], d.budget.learningRate, 'Learning rate', { step: 'any' })}, gradient clip
+        ${this.number(['budget', 'learningRate'], d.budget.learningRate, 'Learning rate', { step: 'any', className: 'wide' })}, gradient clip
         ${this.number(['budget', 'clipNorm'], d.budget.clipNorm, 'Gradient clip norm', { step: 'any' })},
         ${this.select(['budget', 'loss'], d.budget.loss, 'Loss', OPTIONS.loss)} loss; keep the best weights on validation every
         ${this.number(['budget', 'validateEvery'], d.budget.validateEvery, 'Validate every k steps (0: keep the last weights)')} steps.

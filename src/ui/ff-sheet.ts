@@ -7,7 +7,7 @@
  */
 import { LitElement, css, html, nothing } from 'lit';
 import { SheetController, type SheetModel } from './sheet-controller.ts';
-import { armCards, problemFields } from './spec-draft.ts';
+import { armCards, problemFields, type ArmCardView } from './spec-draft.ts';
 import { familyCatalogue, taskCatalogue } from './catalogue.ts';
 import { progressView } from './progress-view.ts';
 import { armColor } from './palette.ts';
@@ -25,6 +25,7 @@ import './ff-share.ts';
 
 const TASKS = taskCatalogue();
 const FAMILIES = familyCatalogue();
+const NO_PROBLEMS: string[] = [];
 
 function sourceLabel(m: SheetModel): string {
   const edited = m.edited ? ' · edited' : '';
@@ -45,6 +46,14 @@ export class FfSheet extends LitElement {
   declare presenter: boolean;
 
   private controller = new SheetController(this);
+  /** Views derived from the draft, rebuilt only when the draft changes (progress ticks re-render the sheet often). */
+  private derived: { draft: SheetModel['draft'] | null; validation: SheetModel['validation'] | null; cards: ArmCardView[]; invalid: Set<string>; problems: string[] } = {
+    draft: null,
+    validation: null,
+    cards: [],
+    invalid: new Set(),
+    problems: NO_PROBLEMS,
+  };
 
   static override styles = [
     tokens,
@@ -118,6 +127,10 @@ export class FfSheet extends LitElement {
         border-radius: 0 4px 4px 0;
         font-size: 0.95em;
       }
+      .banner.test-mode {
+        border-left-color: var(--ochre);
+        background: var(--ochre-soft);
+      }
       .banner code {
         font-family: var(--mono);
       }
@@ -148,9 +161,12 @@ export class FfSheet extends LitElement {
     const c = this.controller;
     const m = c.model;
     const running = m.run.state === 'running';
-    const problems = m.validation.ok ? [] : m.validation.problems;
-    const invalid = problemFields(problems);
-    const cards = armCards(m.draft, armColor);
+    const d = this.derived;
+    if (d.draft !== m.draft || d.validation !== m.validation) {
+      const problems = m.validation.ok ? NO_PROBLEMS : m.validation.problems;
+      this.derived = { draft: m.draft, validation: m.validation, cards: armCards(m.draft, armColor), invalid: problemFields(problems), problems };
+    }
+    const { cards, invalid, problems } = this.derived;
     const progress = progressView(m.run, Date.now());
     const missing = m.validation.ok ? c.missingCount() : 0;
     const fp = m.doc && m.doc.complete ? m.doc.fingerprint : '';
@@ -168,6 +184,12 @@ export class FfSheet extends LitElement {
     return html`<div class="page" @ff-edit=${(e: CustomEvent) => c.edit(e.detail)}>
       ${masthead}
       <ff-notice .notice=${m.notice} @ff-dismiss=${() => c.dismissNotice()}></ff-notice>
+      ${m.faults.size
+        ? html`<p class="banner test-mode" data-fault-banner>
+            Test mode (<code>?fault=</code> in the address): the workers of run${m.faults.size === 1 ? '' : 's'}
+            ${[...m.faults.entries()].map(([run, how]) => `${run} (${how})`).join(', ')} will fail on purpose.
+          </p>`
+        : nothing}
       ${m.source.kind === 'link' && !m.source.own
         ? html`<p class="banner" data-link-banner>
             Opened from a share link: the whole experiment is below. Nothing runs until you press <strong>Run</strong>.

@@ -5,19 +5,22 @@
  * underneath, "too few seeds to tell" first.
  */
 import { LitElement, css, html, nothing } from 'lit';
-import type { ArmKey, CaveatNote, FailureNote, VerdictRow } from './evidence.ts';
+import type { ArmKey, CaveatNote, FailureNote, RankingRow, VerdictRow } from './evidence.ts';
 import { num, pValue } from './format.ts';
 import { controls } from './styles.ts';
 
 export class FfVerdictTable extends LitElement {
   static override properties = {
     verdicts: { attribute: false },
+    rankings: { attribute: false },
     caveats: { attribute: false },
     failures: { attribute: false },
     arms: { attribute: false },
     metric: {},
   };
   declare verdicts: VerdictRow[];
+  /** Shown when there are more than two arms: each rung's arms by mean error. */
+  declare rankings: RankingRow[];
   declare caveats: CaveatNote[];
   declare failures: FailureNote[];
   declare arms: ArmKey[];
@@ -91,6 +94,16 @@ export class FfVerdictTable extends LitElement {
       .ci {
         color: var(--muted);
       }
+      .ranking {
+        margin-bottom: 1em;
+      }
+      td.order {
+        white-space: normal;
+        line-height: 1.6;
+      }
+      .lt {
+        color: var(--muted);
+      }
       .star {
         color: var(--ochre);
       }
@@ -132,6 +145,7 @@ export class FfVerdictTable extends LitElement {
   constructor() {
     super();
     this.verdicts = [];
+    this.rankings = [];
     this.caveats = [];
     this.failures = [];
     this.arms = [];
@@ -142,9 +156,40 @@ export class FfVerdictTable extends LitElement {
     return this.arms.find((a) => a.name === name)?.color ?? 'inherit';
   }
 
+  private ranking() {
+    if (this.arms.length <= 2 || this.rankings.length === 0) return nothing;
+    return html`<div class="wrap ranking">
+      <table>
+        <caption>
+          Ranking by mean ${this.metric}, lowest first
+        </caption>
+        <thead>
+          <tr>
+            <th class="l" scope="col">Test size</th>
+            <th class="l" scope="col">Arms, best to worst (mean over seeds)</th>
+          </tr>
+        </thead>
+        <tbody>
+          ${this.rankings.map(
+            (r) => html`<tr>
+              <td class="l num">n = ${r.size}${r.scale !== 1 ? html`, ×${r.scale}` : nothing}</td>
+              <td class="l order">
+                ${r.order.map(
+                  (o, i) => html`${i > 0 ? html`<span class="lt"> &lt; </span>` : nothing}<span style=${`color: ${o.color}`}>${o.arm}</span>
+                    <span class="ci">${num(o.mean)}</span>`,
+                )}
+              </td>
+            </tr>`,
+          )}
+        </tbody>
+      </table>
+      <div class="foot">A ranking is not a verdict: neighbours often overlap. Pick two arms and give them more seeds for a paired verdict.</div>
+    </div>`;
+  }
+
   override render() {
     if (this.verdicts.length === 0) return null;
-    return html`<div class="wrap">
+    return html`${this.ranking()}<div class="wrap">
         <table>
           <caption>
             Verdicts per rung of the ladder
@@ -173,7 +218,13 @@ export class FfVerdictTable extends LitElement {
                 <td class="num">${v.n ? html`${num(v.diff)} <span class="ci">[${num(v.diffLow)}, ${num(v.diffHigh)}]</span>` : '—'}</td>
                 <td class="num">${v.n ? num(v.probabilityOfImprovement, 2) : '—'}</td>
                 <td class="num">${v.n ? pValue(v.p) : '—'}</td>
-                <td class="l verdict" data-kind=${v.kind}>${v.text}</td>
+                <td
+                  class="l verdict"
+                  data-kind=${v.kind}
+                  style=${v.kind === 'a-better' ? `color: ${this.colorOf(v.a)}` : v.kind === 'b-better' ? `color: ${this.colorOf(v.b)}` : ''}
+                >
+                  ${v.text}
+                </td>
               </tr>`,
             )}
           </tbody>
@@ -188,12 +239,13 @@ export class FfVerdictTable extends LitElement {
             ${this.caveats.map(
               (c) => html`<li class=${c.tooFewSeeds ? 'few' : ''} data-caveat=${c.tooFewSeeds ? 'too-few-seeds' : 'other'}>
                 ${c.tooFewSeeds ? html`<strong>Too few seeds to tell.</strong> ` : nothing}${c.text}
-                ${c.where.length ? html`<span class="where">(${c.where.join('; ')})</span>` : nothing}
+                ${c.where.length ? html`<span class="where">— ${c.where.join("; ")}</span>` : nothing}
               </li>`,
             )}
             ${this.failures.map(
               (f) => html`<li class="fail" data-failure>
-                <strong>${f.arm}, seed ${f.seed}: ${f.status}.</strong> ${f.reason} This run is left out of the statistics.
+                <strong>${f.arm}, seed ${f.seed}: ${f.status}.</strong> ${f.reason}${/[.!?]$/.test(f.reason) || !f.reason ? '' : '.'} This run is left out of the
+                statistics.
               </li>`,
             )}
           </ul>`

@@ -111,7 +111,7 @@ export function progressView(snapshot: RunSnapshot, now: number): ProgressView {
   // Overall ETA from the pace of this session: work done (in runs) per second so far.
   let elapsed = '';
   let eta = '';
-  if (snapshot.startedAt) {
+  if (snapshot.startedAt !== null) {
     const end = snapshot.state === 'running' ? now : (snapshot.finishedAt ?? now);
     const seconds = (end - snapshot.startedAt) / 1000;
     elapsed = duration(seconds);

@@ -87,6 +87,8 @@ function createBrowserWorker(): PoolWorker {
 }
 
 const EDIT_SETTLE_MS = 200;
+const EVIDENCE_EVERY_MS = 2000;
+const PROGRESS_EVERY_MS = 400;
 
 export class SheetController implements ReactiveController {
   model: SheetModel;
@@ -97,7 +99,12 @@ export class SheetController implements ReactiveController {
   private showTimer: ReturnType<typeof setTimeout> | null = null;
   private ticker: ReturnType<typeof setInterval> | null = null;
   private shareToken = 0;
+  private evidenceAt = 0;
+  private progressAt = 0;
+  private progressTimer: ReturnType<typeof setTimeout> | null = null;
+  private evidenceTimer: ReturnType<typeof setTimeout> | null = null;
   private readonly onHashChange = () => void this.openFromAddress();
+  private readonly faults = parseFaults(location.search);
 
   constructor(private readonly host: ReactiveControllerHost) {
     host.addController(this);
@@ -123,7 +130,7 @@ export class SheetController implements ReactiveController {
       presenter: false,
       workers: maxWorkers,
       maxWorkers,
-      faults: parseFaults(location.search),
+      faults: this.faults,
     };
   }
 
@@ -132,7 +139,7 @@ export class SheetController implements ReactiveController {
       createWorker: createBrowserWorker,
       init: { type: 'init', backend: 'wasm', threads: 1, wasmPaths: wasmPaths() },
       store,
-      faults: parseFaults(location.search),
+      faults: this.faults,
       onChange: () => this.onRunsChanged(),
     });
   }
@@ -147,6 +154,8 @@ export class SheetController implements ReactiveController {
     this.runs.dispose();
     this.stopTicker();
     if (this.showTimer) clearTimeout(this.showTimer);
+    if (this.evidenceTimer) clearTimeout(this.evidenceTimer);
+    if (this.progressTimer) clearTimeout(this.progressTimer);
   }
 
   private async start(): Promise<void> {
@@ -162,6 +171,21 @@ export class SheetController implements ReactiveController {
     this.host.requestUpdate();
   }
 
+  /**
+   * Progress-only changes arrive several times a second per worker; redraw
+   * them at most every PROGRESS_EVERY_MS so the page stays responsive.
+   */
+  private setProgress(patch: Partial<SheetModel>): void {
+    this.model = { ...this.model, ...patch };
+    if (this.progressTimer) return;
+    const wait = Math.max(0, PROGRESS_EVERY_MS - (Date.now() - this.progressAt));
+    this.progressTimer = setTimeout(() => {
+      this.progressTimer = null;
+      this.progressAt = Date.now();
+      this.host.requestUpdate();
+    }, wait);
+  }
+
   // ---------------------------------------------------------------- sources
 
   /** Read the spec from the address: a share link after '#', or the default preset. */
@@ -172,7 +196,10 @@ export class SheetController implements ReactiveController {
         const { spec, fingerprint } = await decodeSpecLink(hash);
         const own = (history.state as { farfieldOwn?: boolean } | null)?.farfieldOwn === true;
         this.linkFingerprint = fingerprint ?? null;
-        this.load(spec, { kind: 'link', own }, null);
+        // The sheet's own address after a reload: name the preset it holds, if it is one.
+        const preset = own ? this.model.presets.find((p) => p.ok && sameSpec(p.spec, spec)) : undefined;
+        if (preset && preset.ok) this.load(spec, { kind: 'preset', id: preset.id, file: preset.file }, null);
+        else this.load(spec, { kind: 'link', own }, null);
         return;
       } catch (error) {
         this.linkFingerprint = null;
@@ -322,7 +349,18 @@ export class SheetController implements ReactiveController {
   private onRunsChanged(): void {
     const run = this.runs.snapshot;
     const patch: Partial<SheetModel> = { run };
-    if (run.results !== this.docFor) {
+    // While runs finish one after another, redraw the evidence at most every EVIDENCE_EVERY_MS.
+    const due = run.state !== 'running' || Date.now() - this.evidenceAt >= EVIDENCE_EVERY_MS;
+    if (run.results !== this.docFor && !due) {
+      this.evidenceTimer ??= setTimeout(() => {
+        this.evidenceTimer = null;
+        this.onRunsChanged();
+      }, EVIDENCE_EVERY_MS);
+    }
+    if (run.results !== this.docFor && due) {
+      this.evidenceAt = Date.now();
+      if (this.evidenceTimer) clearTimeout(this.evidenceTimer);
+      this.evidenceTimer = null;
       this.docFor = run.results;
       const v = this.model.validation;
       if (run.results.length > 0 && v.ok && specHash(v.spec) === run.specHash) {
@@ -340,7 +378,9 @@ export class SheetController implements ReactiveController {
         patch.fingerprintCheck = { ...check, verdict: doc && doc.complete ? (doc.fingerprint === check.expected ? 'match' : 'differ') : 'pending' };
       }
     }
-    this.set(patch);
+    const progressOnly = Object.keys(patch).length === 1 && run.state === 'running' && this.model.run.state === 'running' && run.results === this.model.run.results;
+    if (progressOnly) this.setProgress(patch);
+    else this.set(patch);
     if (run.state === 'running') this.startTicker();
     else this.stopTicker();
     if (patch.doc !== undefined) void this.refreshShareLink();

@@ -38,6 +38,8 @@ export type SpecEdit =
   | { kind: 'arm-note'; arm: number; note: string }
   | { kind: 'arm-switch'; arm: number; key: SwitchKey; value: unknown }
   | { kind: 'arm-step'; arm: number; key: StepKey; value: unknown }
+  /** The arm's own learning rate; undefined: the budget's. */
+  | { kind: 'arm-learning-rate'; arm: number; value: number | undefined }
   | { kind: 'arm-add' }
   | { kind: 'arm-duplicate'; arm: number }
   | { kind: 'arm-remove'; arm: number };
@@ -124,6 +126,11 @@ export function applyEdit(draft: Draft, edit: SpecEdit): Draft {
         ...arm,
         model: { ...arm.model, steps: { ...(arm.model.steps ?? {}), [edit.key]: edit.value } },
       }));
+    case 'arm-learning-rate':
+      return withArm(draft, edit.arm, (arm) => {
+        const { learningRate: _old, ...rest } = arm;
+        return edit.value === undefined ? rest : { ...rest, learningRate: edit.value };
+      });
     case 'arm-add': {
       const name = uniqueArmName(`arm ${draft.arms.length + 1}`, draft.arms.map((a) => a.name));
       return { ...draft, arms: [...draft.arms, { name, model: {} }] };
@@ -221,6 +228,9 @@ export interface ArmCardView {
   overridden: Set<string>;
   /** Switches whose value is not the same in every arm. */
   differs: Set<string>;
+  /** The arm's own learning rate, if it overrides the budget's. */
+  learningRate: number | undefined;
+  sharedLearningRate: number;
   nodeFeatures: string[];
   edgeFeatures: string[];
   canRemove: boolean;
@@ -234,6 +244,8 @@ export function armCards(draft: Draft, colorOf: (index: number) => string): ArmC
   const task = taskInfo(draft.task);
   const models = effectiveModels(draft);
   const differs = differingSwitches(models) as Set<string>;
+  const rates = draft.arms.map((arm) => arm.learningRate ?? draft.budget.learningRate);
+  if (rates.some((r) => r !== rates[0])) differs.add('learningRate');
   return draft.arms.map((arm, index) => {
     const overridden = new Set<string>(Object.entries(arm.model).filter(([k, v]) => v !== undefined && k !== 'steps').map(([k]) => k));
     for (const [k, v] of Object.entries(arm.model.steps ?? {})) if (v !== undefined) overridden.add(`steps.${k}`);
@@ -246,6 +258,8 @@ export function armCards(draft: Draft, colorOf: (index: number) => string): ArmC
       model: models[index]!,
       overridden,
       differs,
+      learningRate: arm.learningRate,
+      sharedLearningRate: draft.budget.learningRate,
       nodeFeatures: task?.nodeFeatures ?? ['node input'],
       edgeFeatures: task?.edgeFeatures ?? ['edge input'],
       canRemove: draft.arms.length > 2,
