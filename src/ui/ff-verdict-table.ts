@@ -239,7 +239,7 @@ export class FfVerdictTable extends LitElement {
             ${this.caveats.map(
               (c) => html`<li class=${c.tooFewSeeds ? 'few' : ''} data-caveat=${c.tooFewSeeds ? 'too-few-seeds' : 'other'}>
                 ${c.tooFewSeeds ? html`<strong>Too few seeds to tell.</strong> ` : nothing}${c.text}
-                ${c.where.length ? html`<span class="where">— ${c.where.join("; ")}</span>` : nothing}
+                ${c.where.length ? html`<span class="where">— ${c.where.join('; ')}</span>` : nothing}
               </li>`,
             )}
             ${this.failures.map(
