@@ -280,9 +280,9 @@ describe('share link refusals: one clear message per stage', () => {
   });
 
   it("spec: the checker's message, prefixed, with the field", async () => {
-    const err = await expectStage(await rawFragment(JSON.stringify({ ...specs.minimal, arms: [] })), 'spec', "the link's spec: arms: got [], allowed at least 2 items");
+    const err = await expectStage(await rawFragment(JSON.stringify({ ...specs.minimal, arms: [] })), 'spec', "the link's spec: arms: got 0 arm(s), allowed at least 2 (give arms, or a sweep)");
     expect(err.field).toBe('arms');
-    expect(err.problems).toEqual(['arms: got [], allowed at least 2 items']);
+    expect(err.problems).toEqual(['arms: got 0 arm(s), allowed at least 2 (give arms, or a sweep)']);
     const many = await expectStage(await rawFragment(JSON.stringify({ farfield: 2, question: 7 })), 'spec', /^the link's spec: \d+ problems:\n {2}- farfield: /);
     expect(many.field).toBe('farfield');
     await expectStage(await rawFragment('[]'), 'spec', /^the link's spec: \(top level\): got \[\], expected object$/);
@@ -309,7 +309,7 @@ describe('share link refusals: one clear message per stage', () => {
   });
 
   it('encode refuses what it could not decode: invalid spec, bad fingerprint, too large', async () => {
-    await expect(encodeSpecLink({ ...specs.minimal!, arms: [] })).rejects.toMatchObject({ name: 'LinkError', stage: 'spec', field: 'arms', message: 'cannot share this spec: arms: got [], allowed at least 2 items' });
+    await expect(encodeSpecLink({ ...specs.minimal!, arms: [] })).rejects.toMatchObject({ name: 'LinkError', stage: 'spec', field: 'arms', message: 'cannot share this spec: arms: got 0 arm(s), allowed at least 2 (give arms, or a sweep)' });
     await expect(encodeSpecLink(specs.minimal!, { fingerprint: 'XYZ' })).rejects.toMatchObject({ stage: 'fingerprint' });
     // 32 arms with long incompressible notes: valid as a spec, too big for a link.
     let state = 12345;
