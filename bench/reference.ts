@@ -225,6 +225,18 @@ export interface StepProfile {
   wallMs: number;
   categories: Record<KernelCategory, { launches: number; ms: number }>;
   top: KernelStat[];
+  /** Matmul kernels grouped by operand shapes, slowest first (which products hold a step back). */
+  matmuls: MatmulStat[];
+}
+
+export interface MatmulStat {
+  /** Kernel name, operand shapes as recorded (transpose flags are not) and output shape, e.g. "BatchMatMul [1,2048,32] · [1,2048,32] -> [1,32,32]". */
+  shapes: string;
+  /** Launches and milliseconds per step. */
+  count: number;
+  ms: number;
+  /** Achieved GFLOP/s of these launches. */
+  gflops: number;
 }
 
 function matmulFlopsOf(k: { name: string; inputShapes: number[][]; outputShapes: number[][] }): number {
@@ -255,15 +267,26 @@ export async function profileStep(trainer: ReferenceTrainer, k = 3): Promise<Ste
     });
     const wall = performance.now() - t0;
     const byName = new Map<string, { count: number; ms: number }>();
+    const byShape = new Map<string, { count: number; ms: number; flops: number }>();
     let flops = 0;
     for (const kernel of info.kernels) {
+      const ms = typeof kernel.kernelTimeMs === 'number' ? kernel.kernelTimeMs : 0;
       const entry = byName.get(kernel.name) ?? { count: 0, ms: 0 };
       entry.count++;
-      entry.ms += typeof kernel.kernelTimeMs === 'number' ? kernel.kernelTimeMs : 0;
+      entry.ms += ms;
       byName.set(kernel.name, entry);
-      flops += matmulFlopsOf(kernel);
+      const f = matmulFlopsOf(kernel);
+      flops += f;
+      if (f > 0) {
+        const key = `${kernel.name} ${kernel.inputShapes.slice(0, 2).map((s) => `[${s.join(',')}]`).join(' · ')} -> [${kernel.outputShapes[0]!.join(',')}]`;
+        const e = byShape.get(key) ?? { count: 0, ms: 0, flops: 0 };
+        e.count++;
+        e.ms += ms;
+        e.flops += f;
+        byShape.set(key, e);
+      }
     }
-    return { flops, byName, wall };
+    return { flops, byName, byShape, wall };
   };
   const one = await summarise(1);
   const many = await summarise(1 + k);
@@ -295,6 +318,10 @@ export async function profileStep(trainer: ReferenceTrainer, k = 3): Promise<Ste
     top.push({ name, count, ms });
   }
   top.sort((a, b) => b.ms - a.ms);
+  // Shapes from the longer profile alone (every steady step repeats them); per step = total / (1 + k).
+  const matmuls: MatmulStat[] = [...many.byShape]
+    .map(([shapes, e]) => ({ shapes, count: e.count / (1 + k), ms: e.ms / (1 + k), gflops: e.ms > 0 ? e.flops / (e.ms * 1e6) : NaN }))
+    .sort((a, b) => b.ms - a.ms);
   return {
     launches,
     wrapperRecords,
@@ -303,5 +330,6 @@ export async function profileStep(trainer: ReferenceTrainer, k = 3): Promise<Ste
     wallMs: Math.max(0, (many.wall - one.wall) / k),
     categories,
     top: top.slice(0, 8),
+    matmuls: matmuls.slice(0, 6),
   };
 }

@@ -74,17 +74,34 @@ interface Variant {
   rounds: number[];
 }
 
-function limitText(launches: number, stepMs: number, matmulMs: number, kernelMs: number, wallMs: number): string {
+/**
+ * What holds the step back, from the profile: engine bookkeeping (wall minus
+ * kernel bodies) against the kernel kinds, and the matmuls' achieved rate.
+ */
+function limitText(launches: number, stepMs: number, profile: StepProfile, matmulFlops: number, ceiling: number): string {
   const perLaunch = (stepMs * 1000) / launches;
-  const share = stepMs > 0 ? matmulMs / stepMs : 0;
-  const kernels = wallMs > 0 ? ` Under tf.profile, kernel bodies take ${Math.round((100 * kernelMs) / wallMs)}% of the step; the rest is engine bookkeeping (tape, tidy, dispatch).` : '';
-  if (share < 0.5) {
-    return (
-      `per-op overhead: ${Math.round(launches)} launches per step, ${perLaunch.toFixed(1)} µs each on average; ` +
-      `at the 256³ matmul rate the step's matmuls would take ${matmulMs.toFixed(1)} of its ${stepMs.toFixed(1)} ms.${kernels}`
-    );
-  }
-  return `matmul throughput: the matmuls alone need ${matmulMs.toFixed(1)} of the ${stepMs.toFixed(1)} ms step at the 256³ rate (${Math.round(launches)} launches per step).${kernels}`;
+  const wall = Math.max(profile.wallMs, profile.kernelMs);
+  const bookkeeping = wall - profile.kernelMs;
+  const pct = (ms: number) => `${Math.round((100 * ms) / wall)}%`;
+  const c = profile.categories;
+  const matmulRate = c.matmul.ms > 0 ? matmulFlops / (c.matmul.ms * 1e6) : NaN;
+  const kinds: Array<[string, number]> = [
+    ['engine bookkeeping (tape, tidy, dispatch; outside kernel bodies)', bookkeeping],
+    [`matmul kernels (${Math.round(c.matmul.launches)} launches at ${matmulRate.toFixed(1)} GFLOP/s, ${Math.round((100 * matmulRate) / ceiling)}% of the 256³ rate)`, c.matmul.ms],
+    [`elementwise and reduction kernels (${Math.round(c.elementwise.launches)} launches)`, c.elementwise.ms],
+    [`graph kernels (${Math.round(c.graph.launches)} launches)`, c.graph.ms],
+    [`tape copies and reshapes (${Math.round(c.copies.launches)} launches)`, c.copies.ms],
+  ];
+  kinds.sort((a, b) => b[1] - a[1]);
+  const headline = kinds[0]![0].startsWith('engine')
+    ? 'per-op overhead'
+    : kinds[0]![0].startsWith('matmul')
+      ? 'matmul kernels running below the 256³ rate (small, gradient-shaped products)'
+      : kinds[0]![0].replace(/ \(.*$/, '');
+  return (
+    `${headline}: ${Math.round(launches)} launches per step, ${perLaunch.toFixed(1)} µs each on average. ` +
+    `Profiled step: ${kinds.map(([what, ms]) => `${what} ${pct(ms)}`).join('; ')}.`
+  );
 }
 
 export async function runBench(options: BenchOptions, log: (line: string) => void): Promise<BenchDocument> {
@@ -158,6 +175,7 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
   const launches = (sumProfile.launches + maxProfile.launches) / 2;
   const stepMs = 1000 / wasmMean;
   const matmulMs = (flopsPerStep / (matmulCeiling * 1e9)) * 1000;
+  const matmulProfiledMs = maxProfile.categories.matmul.ms;
 
   // ---- long run ----
   options.onPhase?.('long-run');
@@ -256,11 +274,14 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
       stepMs,
       microsecondsPerLaunch: (stepMs * 1000) / launches,
       matmulMsAtCeiling: matmulMs,
+      matmulKernelMs: matmulProfiledMs,
+      matmulKernelGflops: matmulProfiledMs > 0 ? maxProfile.matmulFlops / (matmulProfiledMs * 1e6) : NaN,
       breakdown: maxProfile.categories,
       profiledKernelMs: maxProfile.kernelMs,
       profiledWallMs: maxProfile.wallMs,
       topKernels: maxProfile.top,
-      limit: limitText(launches, stepMs, matmulMs, maxProfile.kernelMs, maxProfile.wallMs),
+      matmulShapes: maxProfile.matmuls,
+      limit: limitText(launches, stepMs, maxProfile, maxProfile.matmulFlops, matmulCeiling),
     },
     workers,
     presets,
