@@ -9,6 +9,7 @@ import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
 import type { BackendName } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
+import { failedResult } from '../experiment/run-record.ts';
 
 export interface PoolEvents {
   onStart?: (plan: RunPlan) => void;
@@ -27,25 +28,7 @@ export interface PoolOptions {
 
 const WORKER_ENTRY = new URL('../../workers/node-worker.mjs', import.meta.url);
 
-export function failedResult(plan: RunPlan, reason: string): RunResult {
-  return {
-    index: plan.index,
-    arm: plan.arm,
-    armIndex: plan.armIndex,
-    seed: plan.seed,
-    seedIndex: plan.seedIndex,
-    status: 'failed',
-    reason,
-    stepsDone: 0,
-    keptStep: 0,
-    lossCurve: [],
-    lossEvery: 1,
-    parameters: 0,
-    inDistribution: null,
-    ladder: [],
-    seconds: 0,
-  };
-}
+export { failedResult };
 
 export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options: PoolOptions): { done: Promise<RunResult[]>; cancel: () => Promise<void> } {
   const queue = [...plans];

@@ -15,6 +15,7 @@ import { train, type TrainProgress } from '../train/trainer.ts';
 import { evaluateSet } from '../train/evaluate.ts';
 import type { Metrics } from '../train/metrics.ts';
 import type { TaskInstance } from '../tasks/types.ts';
+import { unmeasuredResult } from './run-record.ts';
 
 export type RunStatus = 'ok' | 'diverged' | 'failed' | 'cancelled';
 
@@ -95,22 +96,7 @@ export function seedData(spec: ExperimentSpec, seed: number, cache?: Map<number,
 
 export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks = {}): RunResult {
   const started = Date.now();
-  const base: RunResult = {
-    index: plan.index,
-    arm: plan.arm,
-    armIndex: plan.armIndex,
-    seed: plan.seed,
-    seedIndex: plan.seedIndex,
-    status: 'ok',
-    stepsDone: 0,
-    keptStep: 0,
-    lossCurve: [],
-    lossEvery: 1,
-    parameters: 0,
-    inDistribution: null,
-    ladder: [],
-    seconds: 0,
-  };
+  const base = unmeasuredResult(plan);
   const data = seedData(spec, plan.seed, hooks.dataCache);
   const task = getTask(spec.task);
   const transforms = featureTransforms(spec, plan.armIndex, data.train);

@@ -13,6 +13,7 @@ import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
 import type { BackendName } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
+import { failedResult } from '../experiment/run-record.ts';
 
 /** The little a pool needs from a worker; `wrapWebWorker` adapts a real one. */
 export interface PoolWorker {
@@ -48,25 +49,7 @@ export interface PoolHandle {
   cancel: () => void;
 }
 
-export function failedResult(plan: RunPlan, reason: string): RunResult {
-  return {
-    index: plan.index,
-    arm: plan.arm,
-    armIndex: plan.armIndex,
-    seed: plan.seed,
-    seedIndex: plan.seedIndex,
-    status: 'failed',
-    reason,
-    stepsDone: 0,
-    keptStep: 0,
-    lossCurve: [],
-    lossEvery: 1,
-    parameters: 0,
-    inDistribution: null,
-    ladder: [],
-    seconds: 0,
-  };
-}
+export { failedResult };
 
 /** Adapt a DOM Worker to the pool's interface. */
 export function wrapWebWorker(worker: Worker): PoolWorker {
