@@ -1,5 +1,7 @@
 import { validateSpec } from '../src/experiment/check.ts';
-import type { ExperimentSpec, SpecInput } from '../src/experiment/spec.ts';
+import { modelSchema, type ExperimentSpec, type SpecInput } from '../src/experiment/spec.ts';
+import { MessagePassingNetwork } from '../src/model/network.ts';
+import { Rng } from '../src/util/rng.ts';
 
 /** A small, fast spec for tests; override any part. */
 export function tinySpec(overrides: Partial<SpecInput> = {}): ExperimentSpec {
@@ -18,4 +20,28 @@ export function tinySpec(overrides: Partial<SpecInput> = {}): ExperimentSpec {
     ],
   };
   return validateSpec({ ...base, ...overrides });
+}
+
+/**
+ * Bellman-Ford as a network: one channel holding the distance estimate, the
+ * source encoded as 0 and every other node as `unreached`, min-plus messages
+ * d(u) + weightGain·w, min aggregation and the state ⊕ message update.
+ * `weightGain` 1 is exact; anything else is a deliberately wrong network.
+ */
+export function bellmanFordNetwork(options: { weightGain?: number; unreached?: number } = {}): MessagePassingNetwork {
+  const { weightGain = 1, unreached = 1e4 } = options;
+  const net = new MessagePassingNetwork(
+    modelSchema.parse({ hidden: 1, aggregator: 'min', message: 'min-plus', update: 'aggregate', bias: true, steps: { rule: 'nodes', trainJitter: 0 } }),
+    1,
+    1,
+    new Rng(1),
+  );
+  net.params.set('encode.w', [-unreached]);
+  net.params.set('encode.b', [unreached]);
+  net.params.set('message.semiring', [0]);
+  net.params.set('message.we', [weightGain]);
+  net.params.set('message.b', [0]);
+  net.params.set('decode.w', [1]);
+  net.params.set('decode.b', [0]);
+  return net;
 }

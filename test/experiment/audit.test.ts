@@ -12,6 +12,7 @@ import type { FeatureTransforms } from '../../src/train/batch.ts';
 import { buildInstance } from '../../src/tasks/sample.ts';
 import type { TaskInstance } from '../../src/tasks/types.ts';
 import { Rng } from '../../src/util/rng.ts';
+import { bellmanFordNetwork } from '../helpers.ts';
 
 const identity: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
 
@@ -30,19 +31,6 @@ function row(rows: AuditRow[], check: string): AuditRow {
   return found;
 }
 
-/** Bellman-Ford as a network (as in test/model/network.test.ts): one channel holding the distance estimate. */
-function bellmanFordNetwork(): MessagePassingNetwork {
-  const net = new MessagePassingNetwork(model({ hidden: 1, aggregator: 'min', message: 'min-plus', update: 'aggregate', bias: true }), 1, 1, new Rng(1));
-  const BIG = 1e4;
-  net.params.set('encode.w', [-BIG]);
-  net.params.set('encode.b', [BIG]);
-  net.params.set('message.semiring', [0]);
-  net.params.set('message.we', [1]);
-  net.params.set('message.b', [0]);
-  net.params.set('decode.w', [1]);
-  net.params.set('decode.b', [0]);
-  return net;
-}
 
 beforeAll(async () => {
   await initBackend('wasm');

@@ -8,33 +8,13 @@ import * as tf from '@tensorflow/tfjs-core';
 import { initBackend } from '../../src/engine/backend.ts';
 import { DEFAULT_SCALES, lengthProbe, meanAudit, meanProbe, messageProbe, probeSummary, scaleProbe, type Probe } from '../../src/experiment/probes.ts';
 import { makeSeedData } from '../../src/experiment/datasets.ts';
-import { MessagePassingNetwork } from '../../src/model/network.ts';
-import { modelSchema } from '../../src/experiment/spec.ts';
 import type { FeatureTransforms } from '../../src/train/batch.ts';
-import { Rng } from '../../src/util/rng.ts';
-import { tinySpec } from '../helpers.ts';
+import { tinySpec, bellmanFordNetwork } from '../helpers.ts';
 
 const identity: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
 // Distances at λ = 100 reach ~10⁴; the "not reached" value must stay far above them.
 const BIG = 1e6;
 
-/** Bellman-Ford as a network (as in test/model/network.test.ts); `weightGain` 1 is exact, anything else is wrong. */
-function bellmanFordNetwork(weightGain = 1): MessagePassingNetwork {
-  const net = new MessagePassingNetwork(
-    modelSchema.parse({ hidden: 1, aggregator: 'min', message: 'min-plus', update: 'aggregate', bias: true, steps: { rule: 'nodes', trainJitter: 0 } }),
-    1,
-    1,
-    new Rng(1),
-  );
-  net.params.set('encode.w', [-BIG]);
-  net.params.set('encode.b', [BIG]);
-  net.params.set('message.semiring', [0]);
-  net.params.set('message.we', [weightGain]);
-  net.params.set('message.b', [0]);
-  net.params.set('decode.w', [1]);
-  net.params.set('decode.b', [0]);
-  return net;
-}
 
 /** Largest |predicted − truth| / |truth| over the sweep (truth floored at 1e-9). */
 function worstRelative(probe: Probe): number {
@@ -50,7 +30,7 @@ beforeAll(async () => {
 
 describe('probes on a network that runs Bellman-Ford exactly (Sedgewick & Wayne, Algorithms 4th ed., §4.4: Bellman-Ford is exact for any non-negative weights and any path length)', () => {
   it('scale sweep: prediction = truth for λ from 0.01 to 100, and truth scales linearly', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordNetwork({ unreached: BIG });
     const probe = scaleProbe(net, identity, spec, { seed: 3, graphs: 6 });
     expect(probe.points.map((p) => p.x)).toEqual([...DEFAULT_SCALES]);
     expect(probe.points[0]!.x).toBe(0.01);
@@ -71,7 +51,7 @@ describe('probes on a network that runs Bellman-Ford exactly (Sedgewick & Wayne,
   });
 
   it('length sweep: the far end of paths of 4..64 nodes is exact (unit weights: distance = hops)', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordNetwork({ unreached: BIG });
     const probe = lengthProbe(net, identity, spec, { train: data.train });
     expect(probe.unavailable).toBeUndefined();
     expect(probe.points.map((p) => p.x)).toEqual([3, 5, 7, 11, 15, 23, 31, 47, 63]);
@@ -87,7 +67,7 @@ describe('probes on a network that runs Bellman-Ford exactly (Sedgewick & Wayne,
   });
 
   it('message probe: a leaf fed by a settled sender reads d_s + w for w up to 10× the largest training weight', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordNetwork({ unreached: BIG });
     const probe = messageProbe(net, identity, spec, { validation: data.validation });
     expect(probe.points).toHaveLength(21);
     expect(probe.points[0]!.x).toBe(0);
@@ -107,7 +87,7 @@ describe('probes on a network that runs Bellman-Ford exactly (Sedgewick & Wayne,
   });
 
   it('probes leave no tensors behind', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordNetwork({ unreached: BIG });
     const before = tf.memory().numTensors;
     scaleProbe(net, identity, spec, { seed: 3, graphs: 2, scales: [0.1, 10] });
     lengthProbe(net, identity, spec, { lengths: [4, 8] });
@@ -119,7 +99,7 @@ describe('probes on a network that runs Bellman-Ford exactly (Sedgewick & Wayne,
 
 describe('probes catch a wrong network', () => {
   it('halving the edge weight in the message: every sweep deviates from the truth', () => {
-    const net = bellmanFordNetwork(0.5);
+    const net = bellmanFordNetwork({ weightGain: 0.5, unreached: BIG });
     const scale = scaleProbe(net, identity, spec, { seed: 3, graphs: 6 });
     expect(worstRelative(scale)).toBeGreaterThan(0.3);
     expect(probeSummary(scale).worstOutside!.relative).toBeGreaterThan(0.3);
@@ -133,7 +113,7 @@ describe('probes catch a wrong network', () => {
   });
 
   it('probeSummary splits the worst deviation inside and outside the training range (a curve right only where it was trained)', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordNetwork({ unreached: BIG });
     const probe = messageProbe(net, identity, spec, { validation: data.validation });
     const ds = probe.details!['senderDecoded'] as number;
     // The same curve, saturating at the largest training weight (10): right inside, wrong beyond.
@@ -154,7 +134,7 @@ describe('probes catch a wrong network', () => {
 
 describe('probe bookkeeping', () => {
   it('length probe is marked unavailable for tasks that do not accept path graphs', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordNetwork({ unreached: BIG });
     const dagSpec = tinySpec({ task: 'earliest-finish', train: { family: 'dag', sizes: [5, 8], graphs: 8 } });
     const probe = lengthProbe(net, identity, dagSpec);
     expect(probe.unavailable).toMatch(/does not accept the 'path' family/);

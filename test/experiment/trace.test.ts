@@ -7,12 +7,10 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import Graph from 'graphology';
 import { initBackend } from '../../src/engine/backend.ts';
 import { alignmentTrace, traceGraph, traceNodes } from '../../src/experiment/trace.ts';
-import { MessagePassingNetwork } from '../../src/model/network.ts';
-import { modelSchema } from '../../src/experiment/spec.ts';
 import type { FeatureTransforms } from '../../src/train/batch.ts';
 import { shortestPath } from '../../src/tasks/shortest-path.ts';
 import { Rng } from '../../src/util/rng.ts';
-import { tinySpec } from '../helpers.ts';
+import { tinySpec, bellmanFordNetwork } from '../helpers.ts';
 
 const identity: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
 
@@ -51,24 +49,6 @@ function tinyEWDInput() {
   return { task: shortestPath, family: 'tinyEWD', graph, instance };
 }
 
-/** Bellman-Ford as a network (as in test/model/network.test.ts). */
-function bellmanFordNetwork(): MessagePassingNetwork {
-  const net = new MessagePassingNetwork(
-    modelSchema.parse({ hidden: 1, aggregator: 'min', message: 'min-plus', update: 'aggregate', bias: true, steps: { rule: 'nodes', trainJitter: 0 } }),
-    1,
-    1,
-    new Rng(1),
-  );
-  const BIG = 1e4;
-  net.params.set('encode.w', [-BIG]);
-  net.params.set('encode.b', [BIG]);
-  net.params.set('message.semiring', [0]);
-  net.params.set('message.we', [1]);
-  net.params.set('message.b', [0]);
-  net.params.set('decode.w', [1]);
-  net.params.set('decode.b', [0]);
-  return net;
-}
 
 beforeAll(async () => {
   await initBackend('wasm');

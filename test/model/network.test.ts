@@ -12,6 +12,7 @@ import { uploadBatch } from '../../src/train/tensors.ts';
 import { maskedLoss } from '../../src/train/loss.ts';
 import { buildInstance } from '../../src/tasks/sample.ts';
 import type { TaskInstance } from '../../src/tasks/types.ts';
+import { bellmanFordNetwork } from '../helpers.ts';
 
 const identity: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
 
@@ -234,15 +235,7 @@ describe('min-plus algebra executes shortest paths', () => {
   });
 
   it('a min-plus message layer with hand-set weights runs Bellman-Ford exactly (Sedgewick & Wayne, Algorithms 4th ed., §4.4; against graphology-shortest-path)', () => {
-    const net = new MessagePassingNetwork(model({ hidden: 1, aggregator: 'min', message: 'min-plus', update: 'aggregate', bias: true }), 1, 1, new Rng(1));
-    const BIG = 1e4;
-    net.params.set('encode.w', [-BIG]);
-    net.params.set('encode.b', [BIG]);
-    net.params.set('message.semiring', [0]);
-    net.params.set('message.we', [1]);
-    net.params.set('message.b', [0]);
-    net.params.set('decode.w', [1]);
-    net.params.set('decode.b', [0]);
+    const net = bellmanFordNetwork();
     const rng = new Rng(8);
     for (let trial = 0; trial < 30; trial++) {
       const { instance, graph } = buildInstance('shortest-path', 'er', 12, rng.fork(trial));
