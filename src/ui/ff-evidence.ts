@@ -12,6 +12,7 @@ import { controls } from './styles.ts';
 import './ff-figure.ts';
 import './ff-verdict-table.ts';
 import './ff-probes.ts';
+import { WidthTracker } from './width-tracker.ts';
 
 export class FfEvidence extends LitElement {
   static override properties = {
@@ -28,7 +29,7 @@ export class FfEvidence extends LitElement {
   private figures: { curves: Element | null; diffs: Element | null; seeds: Element | null } = { curves: null, diffs: null, seeds: null };
   /** Bumped on every redraw, so a stale deferred figure is dropped. */
   private generation = 0;
-  private resize: ResizeObserver | null = null;
+  private readonly widthTracker = new WidthTracker(this);
 
   static override styles = [
     controls,
@@ -165,22 +166,6 @@ export class FfEvidence extends LitElement {
     this.presenter = false;
     this.width = 1000;
     this.logY = false;
-  }
-
-  override connectedCallback(): void {
-    super.connectedCallback();
-    this.resize = new ResizeObserver((entries) => {
-      const w = Math.round(entries[0]?.contentRect.width ?? 0);
-      // Redraw only on real changes (a scrollbar appearing is not one).
-      if (w > 0 && Math.abs(w - this.width) > 24) this.width = w;
-    });
-    this.resize.observe(this);
-  }
-
-  override disconnectedCallback(): void {
-    this.resize?.disconnect();
-    this.resize = null;
-    super.disconnectedCallback();
   }
 
   protected override willUpdate(changed: PropertyValues<this>): void {

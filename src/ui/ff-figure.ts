@@ -1,6 +1,6 @@
 /** <ff-figure>: one evidence figure with its number, title, caption, and SVG / PNG export. */
 import { LitElement, css, html, nothing } from 'lit';
-import { controls } from './styles.ts';
+import { controls, figureFrame } from './styles.ts';
 import { emit } from './events.ts';
 
 export class FfFigure extends LitElement {
@@ -21,42 +21,8 @@ export class FfFigure extends LitElement {
 
   static override styles = [
     controls,
+    figureFrame,
     css`
-      :host {
-        display: block;
-        min-width: 0;
-      }
-      figure {
-        margin: 0;
-        background: var(--card);
-        border: 1px solid var(--rule);
-        border-radius: 4px;
-        padding: 0.8em 1em 0.7em;
-      }
-      .top {
-        display: flex;
-        align-items: baseline;
-        gap: 0.6em;
-        justify-content: space-between;
-        flex-wrap: wrap;
-      }
-      h3 {
-        margin: 0;
-        font-size: 1.05em;
-        font-family: var(--serif);
-      }
-      h3 .no {
-        color: var(--ochre);
-        margin-right: 0.3em;
-      }
-      .tools {
-        display: flex;
-        gap: 0.3em;
-      }
-      .tools button {
-        font-size: 0.78em;
-        padding: 0.15em 0.55em;
-      }
       .plot {
         margin-top: 0.5em;
       }

@@ -22,6 +22,7 @@ import type { ArmTrace } from './ff-trace.ts';
 import './ff-figure.ts';
 import './ff-audit-table.ts';
 import './ff-trace.ts';
+import { WidthTracker } from './width-tracker.ts';
 
 const KINDS: ProbeKind[] = ['scale', 'length', 'message'];
 
@@ -53,7 +54,7 @@ export class FfProbes extends LitElement {
   declare width: number;
 
   private probe = new ProbeController(this);
-  private resize: ResizeObserver | null = null;
+  private readonly widthTracker = new WidthTracker(this);
   private figures: { doc: ProbeDocument | null; width: number; plots: Array<{ kind: ProbeKind; title: string; note: string; figure: Element | null; missing: string[] }> } = { doc: null, width: 0, plots: [] };
   private notice: string | null = null;
 
@@ -205,21 +206,6 @@ export class FfProbes extends LitElement {
     super();
     this.spec = null;
     this.width = 1000;
-  }
-
-  override connectedCallback(): void {
-    super.connectedCallback();
-    this.resize = new ResizeObserver((entries) => {
-      const w = Math.round(entries[0]?.contentRect.width ?? 0);
-      if (w > 0 && Math.abs(w - this.width) > 24) this.width = w;
-    });
-    this.resize.observe(this);
-  }
-
-  override disconnectedCallback(): void {
-    this.resize?.disconnect();
-    this.resize = null;
-    super.disconnectedCallback();
   }
 
   private look(): void {

@@ -8,7 +8,7 @@
 import { LitElement, css, html, nothing, svg, type PropertyValues } from 'lit';
 import type { AlignmentTrace } from '../experiment/trace.ts';
 import { traceFigure } from './probe-plots.ts';
-import { controls } from './styles.ts';
+import { controls, figureFrame } from './styles.ts';
 import { emit } from './events.ts';
 import { num } from './format.ts';
 
@@ -36,42 +36,8 @@ export class FfTrace extends LitElement {
 
   static override styles = [
     controls,
+    figureFrame,
     css`
-      :host {
-        display: block;
-        min-width: 0;
-      }
-      figure {
-        margin: 0;
-        background: var(--card);
-        border: 1px solid var(--rule);
-        border-radius: 4px;
-        padding: 0.8em 1em 0.7em;
-      }
-      .top {
-        display: flex;
-        align-items: baseline;
-        gap: 0.6em;
-        justify-content: space-between;
-        flex-wrap: wrap;
-      }
-      h3 {
-        margin: 0;
-        font-size: 1.05em;
-        font-family: var(--serif);
-      }
-      h3 .no {
-        color: var(--ochre);
-        margin-right: 0.3em;
-      }
-      .tools {
-        display: flex;
-        gap: 0.3em;
-      }
-      .tools button {
-        font-size: 0.78em;
-        padding: 0.15em 0.55em;
-      }
       .body {
         display: grid;
         grid-template-columns: minmax(0, 1fr);

@@ -151,3 +151,42 @@ export const sectionHead = css`
     font-size: 1.05em;
   }
 `;
+
+/** The numbered figure frame (title, export buttons, body) shared by every figure of the evidence. */
+export const figureFrame = css`
+  :host {
+    display: block;
+    min-width: 0;
+  }
+  figure {
+    margin: 0;
+    background: var(--card);
+    border: 1px solid var(--rule);
+    border-radius: 4px;
+    padding: 0.8em 1em 0.7em;
+  }
+  .top {
+    display: flex;
+    align-items: baseline;
+    gap: 0.6em;
+    justify-content: space-between;
+    flex-wrap: wrap;
+  }
+  h3 {
+    margin: 0;
+    font-size: 1.05em;
+    font-family: var(--serif);
+  }
+  h3 .no {
+    color: var(--ochre);
+    margin-right: 0.3em;
+  }
+  .tools {
+    display: flex;
+    gap: 0.3em;
+  }
+  .tools button {
+    font-size: 0.78em;
+    padding: 0.15em 0.55em;
+  }
+`;
