@@ -36,6 +36,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import type { MathBackendCPU } from '@tensorflow/tfjs-backend-cpu';
+import { simdKernels, type SimdKernels } from './simd/simd-kernels.ts';
 
 export const K = {
   gatherRows: 'FarfieldGatherRows',
@@ -57,6 +58,12 @@ export interface OutSpec {
   dtype: NumDType;
 }
 export type Body = (outs: TypedArray[], ins: TypedArray[]) => void;
+/**
+ * The same kernel on Farfield's SIMD module (WASM only): gets views of the
+ * inputs for checks, and the tensor infos to hand to the module. Must give
+ * the same bits as `Body`.
+ */
+export type SimdBody = (simd: SimdKernels, outs: tf.TensorInfo[], ins: tf.TensorInfo[], inViews: TypedArray[]) => void;
 
 function newTyped(dtype: NumDType, size: number): TypedArray {
   if (dtype === 'float32') return new Float32Array(size);
@@ -74,17 +81,19 @@ export function execute(
   ins: tf.TensorInfo[],
   outs: OutSpec[],
   body: Body,
+  simdBody?: SimdBody,
 ): tf.TensorInfo[] {
   if (flavour === 'wasm') {
     // Kernel args carry the backend as KernelBackend; this function is only
     // registered for 'wasm', so it is a BackendWasm.
     const backend = backendObj as BackendWasm;
+    const simd = simdBody == null ? null : simdKernels(backend);
     const infos = outs.map((o) => backend.makeOutput(o.shape, o.dtype));
     // Views only after all allocations (see header).
-    const outArrays = infos.map((i) => backend.typedArrayFromHeap(i) as TypedArray);
     const inArrays = ins.map((t) => backend.typedArrayFromHeap(t) as TypedArray);
     try {
-      body(outArrays, inArrays);
+      if (simd != null) simdBody!(simd, infos, ins, inArrays);
+      else body(infos.map((i) => backend.typedArrayFromHeap(i) as TypedArray), inArrays);
     } catch (err) {
       for (const i of infos) backend.disposeData(i.dataId);
       throw err;
@@ -344,8 +353,8 @@ function wasmNativeKernelFuncs(): Pick<KernelTable, 'FarfieldGatherRows' | 'Farf
 }
 
 function jsKernelFuncs(flavour: Flavour): KernelTable {
-  const run = (backend: unknown, ins: tf.TensorInfo[], outs: OutSpec[], body: Body): tf.TensorInfo[] =>
-    execute(flavour, backend, ins, outs, body);
+  const run = (backend: unknown, ins: tf.TensorInfo[], outs: OutSpec[], body: Body, simdBody?: SimdBody): tf.TensorInfo[] =>
+    execute(flavour, backend, ins, outs, body, simdBody);
   return {
     [K.gatherRows]: ({ inputs, backend }) => {
       const x = input(inputs, 'x');
@@ -375,12 +384,24 @@ function jsKernelFuncs(flavour: Flavour): KernelTable {
       const arg = input(inputs, 'arg');
       const R = attrInt(attrs ?? {}, 'numRows');
       const C = cols(dy);
-      return run(backend, [dy, arg], [{ shape: [R, C], dtype: 'float32' }], ([out], [dv, av]) => {
+      const checkArg = (av: TypedArray) => {
         for (let i = 0; i < av.length; i++) {
           if (av[i] >= R) throw new Error(`model/ops scatterByArg: arg ${av[i]} out of range 0..${R - 1}`);
         }
-        scatterByArgLoop(out, dv, av, C);
-      })[0];
+      };
+      return run(
+        backend,
+        [dy, arg],
+        [{ shape: [R, C], dtype: 'float32' }],
+        ([out], [dv, av]) => {
+          checkArg(av);
+          scatterByArgLoop(out, dv, av, C);
+        },
+        (simd, [out], [dyInfo, argInfo], [, av]) => {
+          checkArg(av);
+          simd.scatterByArg(dyInfo, argInfo, out, R, av.length, C);
+        },
+      )[0];
     },
     [K.gatherByArg]: ({ inputs, backend }) => {
       const x = input(inputs, 'x');
@@ -428,7 +449,7 @@ function jsKernelFuncs(flavour: Flavour): KernelTable {
 }
 
 function extremeKernel(
-  run: (backend: unknown, ins: tf.TensorInfo[], outs: OutSpec[], body: Body) => tf.TensorInfo[],
+  run: (backend: unknown, ins: tf.TensorInfo[], outs: OutSpec[], body: Body, simdBody?: SimdBody) => tf.TensorInfo[],
   inputs: Inputs,
   backend: unknown,
   attrs: Attrs,
@@ -448,6 +469,10 @@ function extremeKernel(
     ([vals, arg], [xv, iv]) => {
       checkIds(isMax ? 'segmentMax' : 'segmentMin', iv, S);
       segmentExtremeLoop(vals, arg, xv, iv, C, S, isMax);
+    },
+    (simd, [vals, arg], [xInfo, idsInfo], [, iv]) => {
+      checkIds(isMax ? 'segmentMax' : 'segmentMin', iv, S);
+      simd.segmentExtreme(xInfo, idsInfo, vals, arg, iv.length, C, S, isMax);
     },
   );
 }

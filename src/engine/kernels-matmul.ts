@@ -20,9 +20,16 @@
  * Results: the patched kernel is bit-identical to the stock kernel applied to
  * explicitly transposed inputs; against the stock *transposed* path it differs
  * only in float32 summation order (see test/model/ops.test.ts).
+ *
+ * Wherever that leaves a product on XNNPACK (untransposed, or transposed and
+ * worth transposing), Farfield's SIMD kernel (src/engine/simd/) computes it
+ * instead, bit-identically and without XNNPACK's per-tensor packing of B: a
+ * plain or fused (bias, linear or relu) A·B, Aᵀ·B directly, and A·Bᵀ after an
+ * explicit transpose of the (small, weight-shaped) B.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
+import { simdKernels, type SimdKernels } from './simd/simd-kernels.ts';
 
 const PATCHED = Symbol.for('farfield.matmulPatched');
 interface Patched {
@@ -56,16 +63,62 @@ export function worthTransposing(aShape: number[], bShape: number[], transposeA:
   return M * K * N * 2.4 > 30000 + 10 * K * N;
 }
 
+/**
+ * The product on the SIMD kernels, or null where they do not apply (the
+ * caller then takes the XNNPACK or stock path, which gives the same bits).
+ */
+function simdProduct(
+  simd: SimdKernels,
+  args: Parameters<tf.KernelFunc>[0],
+  transposeA: boolean,
+  transposeB: boolean,
+): tf.TensorInfo | null {
+  const { a, b, bias, preluActivationWeights } = args.inputs as Record<string, tf.TensorInfo | undefined>;
+  if (a == null || b == null || a.dtype !== 'float32' || b.dtype !== 'float32') return null;
+  if (batchOf(a.shape) !== 1 || batchOf(b.shape) !== 1 || a.shape.length < 2 || b.shape.length < 2) return null;
+  const activation = (args.attrs?.['activation'] as string | undefined) ?? 'linear';
+  if (preluActivationWeights != null || (activation !== 'linear' && activation !== 'relu')) return null;
+  const ra = a.shape.length;
+  const rb = b.shape.length;
+  const M = transposeA ? a.shape[ra - 1] : a.shape[ra - 2];
+  const K = transposeA ? a.shape[ra - 2] : a.shape[ra - 1];
+  const N = transposeB ? b.shape[rb - 2] : b.shape[rb - 1];
+  if (bias != null && (bias.dtype !== 'float32' || bias.shape.length !== 1 || bias.shape[0] !== N)) return null;
+  const fused = bias != null || activation === 'relu';
+  if (transposeA && (transposeB || fused)) return null;
+  if ((transposeA || transposeB) && !worthTransposing(a.shape, b.shape, transposeA, transposeB)) return null;
+  const backend = args.backend as BackendWasm;
+  const outShape = [...(ra >= rb ? a.shape : b.shape).slice(0, -2), M, N];
+  if (transposeA) {
+    const out = backend.makeOutput(outShape, 'float32');
+    simd.matMulTN(a, b, out, K, M, N);
+    return out;
+  }
+  const b2 = transposeB ? transposeLast2(b, backend) : b;
+  try {
+    const out = backend.makeOutput(outShape, 'float32');
+    simd.matMulNN(a, b2, out, K, M, N, bias ?? null, activation === 'relu');
+    return out;
+  } finally {
+    if (transposeB) backend.disposeData(b2.dataId);
+  }
+}
+
 function wrap(original: tf.KernelConfig): tf.KernelFunc {
   const f: tf.KernelFunc = (args) => {
     const attrs = args.attrs ?? {};
     const transposeA = attrs['transposeA'] === true;
     const transposeB = attrs['transposeB'] === true;
+    // Registered only for 'wasm'.
+    const backend = args.backend as BackendWasm;
+    const simd = simdKernels(backend);
+    if (simd != null) {
+      const out = simdProduct(simd, args, transposeA, transposeB);
+      if (out != null) return out;
+    }
     if (!transposeA && !transposeB) return original.kernelFunc(args);
     const { a, b } = args.inputs as { a: tf.TensorInfo; b: tf.TensorInfo }; // BatchMatMul's declared inputs
     if (!worthTransposing(a.shape, b.shape, transposeA, transposeB)) return original.kernelFunc(args);
-    // Registered only for 'wasm'.
-    const backend = args.backend as BackendWasm;
     const temps: tf.TensorInfo[] = [];
     const a2 = transposeA ? transposeLast2(a, backend) : a;
     if (transposeA) temps.push(a2);

@@ -44,6 +44,10 @@ function funcs(flavour: Flavour): Record<string, tf.KernelFunc> {
           const d = dv![e]! * twoH + H;
           for (let c = 0; c < H; c++, k++) o[k] = P[s + c]! + P[d + c]! + B[k]!;
         }
+      }, (simd, [out], [pi, si, di, bi], [, sv, dv]) => {
+        inRange('gatherPairAdd', sv!, N);
+        inRange('gatherPairAdd', dv!, N);
+        simd.gatherPairAdd(pi!, si!, di!, bi!, out!, E, H);
       })[0]!;
     },
     [PAIR_KERNELS.scatterPair]: ({ inputs, backend, attrs }) => {
@@ -67,6 +71,10 @@ function funcs(flavour: Flavour): Record<string, tf.KernelFunc> {
             o[d + c] += g;
           }
         }
+      }, (simd, [out], [gi, si, di], [, sv, dv]) => {
+        inRange('scatterPair', sv!, N);
+        inRange('scatterPair', dv!, N);
+        simd.scatterPair(gi!, si!, di!, out!, N, E, H);
       })[0]!;
     },
   };

@@ -1,0 +1,365 @@
+;; Farfield's SIMD kernels. They run on the tfjs WASM backend's own memory
+;; (imported), so they read inputs and write outputs in place, with no copies.
+;;
+;; Bit-identity rule: every output element is computed with exactly the
+;; float32 operations, in exactly the order, of the code path it replaces, so
+;; results (and fingerprints) do not depend on which path ran:
+;;   mm_tn, mm_nn C = Aᵀ·B or act(bias + A·B); each C[i,j] = ((bias + a0·b0) + a1·b1) + …
+;;                in k order, the order of the backend's XNNPACK matmul.
+;;   gather_pair_add   p[src] + p[dst] + b summed in float64 and rounded once,
+;;                as the JavaScript loop it replaces does.
+;;   scatter_pair, scatter_by_arg   float32 sums in edge order (a float64 sum of two
+;;                float32 values rounded to float32 equals the float32 sum).
+;;   segment_extreme   comparisons only; ties keep the lowest edge, a NaN wins.
+;; Pointers are byte offsets into the shared memory; sizes are element counts.
+(module
+  (import "env" "memory" (memory 1))
+
+  ;; One C element the plain way (edge rows and columns of a product).
+  ;; A(i, k) sits at a + 4·(i·rs + k·ks); B is [K, N] row-major.
+  ;; The sum starts from bias[j] when $bias >= 0, else from 0 (as the backend's matmul does).
+  (func $dot (param $a i32) (param $b i32) (param $K i32) (param $rs i32) (param $ks i32) (param $N i32) (param $i i32) (param $j i32) (param $bias i32) (result f32)
+    (local $acc f32) (local $pa i32) (local $pb i32) (local $k i32) (local $sa i32) (local $sb i32)
+    (local.set $pa (i32.add (local.get $a) (i32.shl (i32.mul (local.get $i) (local.get $rs)) (i32.const 2))))
+    (local.set $pb (i32.add (local.get $b) (i32.shl (local.get $j) (i32.const 2))))
+    (local.set $sa (i32.shl (local.get $ks) (i32.const 2)))
+    (local.set $sb (i32.shl (local.get $N) (i32.const 2)))
+    (local.set $acc (f32.const 0))
+    (if (i32.ge_s (local.get $bias) (i32.const 0))
+      (then (local.set $acc (f32.load (i32.add (local.get $bias) (i32.shl (local.get $j) (i32.const 2)))))))
+    (block $done
+      (loop $k_loop
+        (br_if $done (i32.ge_u (local.get $k) (local.get $K)))
+        (local.set $acc (f32.add (local.get $acc) (f32.mul (f32.load (local.get $pa)) (f32.load (local.get $pb)))))
+        (local.set $pa (i32.add (local.get $pa) (local.get $sa)))
+        (local.set $pb (i32.add (local.get $pb) (local.get $sb)))
+        (local.set $k (i32.add (local.get $k) (i32.const 1)))
+        (br $k_loop)))
+    (local.get $acc))
+
+  ;; C[M,N] = Aᵀ·B for A [K,M] and B [K,N], all row-major float32.
+  (func (export "mm_tn") (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32)
+    (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (i32.const 1) (local.get $M) (i32.const -1) (i32.const 0)))
+
+  ;; C[M,N] = act(bias + A·B) for A [M,K] and B [K,N], all row-major float32;
+  ;; bias [N] at $bias, or none when $bias < 0; $relu = 1 clamps at 0 the way
+  ;; the backend's fused relu does (max(0, x) with a NaN going to 0).
+  (func (export "mm_nn") (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32) (param $bias i32) (param $relu i32)
+    (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (local.get $K) (i32.const 1) (local.get $bias) (local.get $relu)))
+
+  ;; C[M,N] = A·B with A(i, k) at a + 4·(i·rs + k·ks). Blocks of 4 rows x 8
+  ;; columns keep 8 accumulators in registers.
+  (func $mm (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32) (param $rs i32) (param $ks i32) (param $bias i32) (param $relu i32)
+    (local $pa1 i32) (local $zero v128) (local $bias0 v128) (local $bias1 v128) (local $v f32) (local $pa2 i32) (local $pa3 i32) (local $rsb i32)
+    (local $i i32) (local $j i32) (local $k i32) (local $r i32)
+    (local $pa i32) (local $pb i32) (local $pc i32) (local $sa i32) (local $sb i32) (local $sc i32)
+    (local $M4 i32) (local $N8 i32)
+    (local $b0 v128) (local $b1 v128) (local $x v128)
+    (local $c00 v128) (local $c01 v128) (local $c10 v128) (local $c11 v128)
+    (local $c20 v128) (local $c21 v128) (local $c30 v128) (local $c31 v128)
+    (local.set $sa (i32.shl (local.get $ks) (i32.const 2)))
+    (local.set $rsb (i32.shl (local.get $rs) (i32.const 2)))
+    (local.set $sb (i32.shl (local.get $N) (i32.const 2)))
+    (local.set $sc (i32.shl (local.get $N) (i32.const 2)))
+    (local.set $M4 (i32.and (local.get $M) (i32.const -4)))
+    (local.set $N8 (i32.and (local.get $N) (i32.const -8)))
+    ;; full 4 x 8 blocks
+    (local.set $i (i32.const 0))
+    (block $i_done
+      (loop $i_loop
+        (br_if $i_done (i32.ge_u (local.get $i) (local.get $M4)))
+        (local.set $j (i32.const 0))
+        (block $j_done
+          (loop $j_loop
+            (br_if $j_done (i32.ge_u (local.get $j) (local.get $N8)))
+            (local.set $bias0 (v128.const f32x4 0 0 0 0))
+            (local.set $bias1 (v128.const f32x4 0 0 0 0))
+            (if (i32.ge_s (local.get $bias) (i32.const 0))
+              (then
+                (local.set $bias0 (v128.load (i32.add (local.get $bias) (i32.shl (local.get $j) (i32.const 2)))))
+                (local.set $bias1 (v128.load offset=16 (i32.add (local.get $bias) (i32.shl (local.get $j) (i32.const 2)))))))
+            (local.set $c00 (local.get $bias0)) (local.set $c01 (local.get $bias1))
+            (local.set $c10 (local.get $bias0)) (local.set $c11 (local.get $bias1))
+            (local.set $c20 (local.get $bias0)) (local.set $c21 (local.get $bias1))
+            (local.set $c30 (local.get $bias0)) (local.set $c31 (local.get $bias1))
+            (local.set $pa (i32.add (local.get $a) (i32.mul (local.get $i) (local.get $rsb))))
+            (local.set $pa1 (i32.add (local.get $pa) (local.get $rsb)))
+            (local.set $pa2 (i32.add (local.get $pa1) (local.get $rsb)))
+            (local.set $pa3 (i32.add (local.get $pa2) (local.get $rsb)))
+            (local.set $pb (i32.add (local.get $b) (i32.shl (local.get $j) (i32.const 2))))
+            (local.set $k (i32.const 0))
+            (block $k_done
+              (loop $k_loop
+                (br_if $k_done (i32.ge_u (local.get $k) (local.get $K)))
+                (local.set $b0 (v128.load (local.get $pb)))
+                (local.set $b1 (v128.load offset=16 (local.get $pb)))
+                (local.set $x (f32x4.splat (f32.load (local.get $pa))))
+                (local.set $c00 (f32x4.add (local.get $c00) (f32x4.mul (local.get $x) (local.get $b0))))
+                (local.set $c01 (f32x4.add (local.get $c01) (f32x4.mul (local.get $x) (local.get $b1))))
+                (local.set $x (f32x4.splat (f32.load (local.get $pa1))))
+                (local.set $c10 (f32x4.add (local.get $c10) (f32x4.mul (local.get $x) (local.get $b0))))
+                (local.set $c11 (f32x4.add (local.get $c11) (f32x4.mul (local.get $x) (local.get $b1))))
+                (local.set $x (f32x4.splat (f32.load (local.get $pa2))))
+                (local.set $c20 (f32x4.add (local.get $c20) (f32x4.mul (local.get $x) (local.get $b0))))
+                (local.set $c21 (f32x4.add (local.get $c21) (f32x4.mul (local.get $x) (local.get $b1))))
+                (local.set $x (f32x4.splat (f32.load (local.get $pa3))))
+                (local.set $c30 (f32x4.add (local.get $c30) (f32x4.mul (local.get $x) (local.get $b0))))
+                (local.set $c31 (f32x4.add (local.get $c31) (f32x4.mul (local.get $x) (local.get $b1))))
+                (local.set $pa (i32.add (local.get $pa) (local.get $sa)))
+                (local.set $pa1 (i32.add (local.get $pa1) (local.get $sa)))
+                (local.set $pa2 (i32.add (local.get $pa2) (local.get $sa)))
+                (local.set $pa3 (i32.add (local.get $pa3) (local.get $sa)))
+                (local.set $pb (i32.add (local.get $pb) (local.get $sb)))
+                (local.set $k (i32.add (local.get $k) (i32.const 1)))
+                (br $k_loop)))
+            (if (local.get $relu)
+              (then
+                (local.set $c00 (f32x4.pmax (local.get $zero) (local.get $c00))) (local.set $c01 (f32x4.pmax (local.get $zero) (local.get $c01)))
+                (local.set $c10 (f32x4.pmax (local.get $zero) (local.get $c10))) (local.set $c11 (f32x4.pmax (local.get $zero) (local.get $c11)))
+                (local.set $c20 (f32x4.pmax (local.get $zero) (local.get $c20))) (local.set $c21 (f32x4.pmax (local.get $zero) (local.get $c21)))
+                (local.set $c30 (f32x4.pmax (local.get $zero) (local.get $c30))) (local.set $c31 (f32x4.pmax (local.get $zero) (local.get $c31)))))
+            (local.set $pc (i32.add (local.get $c)
+              (i32.shl (i32.add (i32.mul (local.get $i) (local.get $N)) (local.get $j)) (i32.const 2))))
+            (v128.store (local.get $pc) (local.get $c00))
+            (v128.store offset=16 (local.get $pc) (local.get $c01))
+            (local.set $pc (i32.add (local.get $pc) (local.get $sc)))
+            (v128.store (local.get $pc) (local.get $c10))
+            (v128.store offset=16 (local.get $pc) (local.get $c11))
+            (local.set $pc (i32.add (local.get $pc) (local.get $sc)))
+            (v128.store (local.get $pc) (local.get $c20))
+            (v128.store offset=16 (local.get $pc) (local.get $c21))
+            (local.set $pc (i32.add (local.get $pc) (local.get $sc)))
+            (v128.store (local.get $pc) (local.get $c30))
+            (v128.store offset=16 (local.get $pc) (local.get $c31))
+            (local.set $j (i32.add (local.get $j) (i32.const 8)))
+            (br $j_loop)))
+        (local.set $i (i32.add (local.get $i) (i32.const 4)))
+        (br $i_loop)))
+    ;; leftover columns (j >= N8) for the blocked rows, and all columns of leftover rows
+    (local.set $i (i32.const 0))
+    (block $ri_done
+      (loop $ri_loop
+        (br_if $ri_done (i32.ge_u (local.get $i) (local.get $M)))
+        (local.set $j (select (local.get $N8) (i32.const 0) (i32.lt_u (local.get $i) (local.get $M4))))
+        (block $rj_done
+          (loop $rj_loop
+            (br_if $rj_done (i32.ge_u (local.get $j) (local.get $N)))
+            (local.set $v (call $dot (local.get $a) (local.get $b) (local.get $K) (local.get $rs) (local.get $ks) (local.get $N) (local.get $i) (local.get $j) (local.get $bias)))
+            ;; pmax(0, v) = 0 < v ? v : 0, so a NaN goes to 0 here too
+            (if (local.get $relu)
+              (then (local.set $v (select (local.get $v) (f32.const 0) (f32.lt (f32.const 0) (local.get $v))))))
+            (f32.store
+              (i32.add (local.get $c) (i32.shl (i32.add (i32.mul (local.get $i) (local.get $N)) (local.get $j)) (i32.const 2)))
+              (local.get $v))
+            (local.set $j (i32.add (local.get $j) (i32.const 1)))
+            (br $rj_loop)))
+        (local.set $i (i32.add (local.get $i) (i32.const 1)))
+        (br $ri_loop)))
+  )
+
+  ;; out[e, c] = p[src[e], c] + p[dst[e], H + c] + b[e, c] for p [nodes, 2H].
+  (func (export "gather_pair_add") (param $p i32) (param $src i32) (param $dst i32) (param $b i32) (param $out i32) (param $E i32) (param $H i32)
+    (local $e i32) (local $c i32) (local $ps i32) (local $pd i32) (local $pb i32) (local $po i32) (local $H4 i32)
+    (local $x v128) (local $y v128) (local $z v128) (local $lo v128) (local $hi v128)
+    (local.set $H4 (i32.and (local.get $H) (i32.const -4)))
+    (local.set $pb (local.get $b))
+    (local.set $po (local.get $out))
+    (block $e_done
+      (loop $e_loop
+        (br_if $e_done (i32.ge_u (local.get $e) (local.get $E)))
+        (local.set $ps (i32.add (local.get $p)
+          (i32.shl (i32.mul (i32.load (i32.add (local.get $src) (i32.shl (local.get $e) (i32.const 2)))) (local.get $H)) (i32.const 3))))
+        (local.set $pd (i32.add (i32.add (local.get $p) (i32.shl (local.get $H) (i32.const 2)))
+          (i32.shl (i32.mul (i32.load (i32.add (local.get $dst) (i32.shl (local.get $e) (i32.const 2)))) (local.get $H)) (i32.const 3))))
+        (local.set $c (i32.const 0))
+        (block $c_done
+          (loop $c_loop
+            (br_if $c_done (i32.ge_u (local.get $c) (local.get $H4)))
+            (local.set $x (v128.load (local.get $ps)))
+            (local.set $y (v128.load (local.get $pd)))
+            (local.set $z (v128.load (local.get $pb)))
+            (local.set $lo (f32x4.demote_f64x2_zero
+              (f64x2.add (f64x2.add (f64x2.promote_low_f32x4 (local.get $x)) (f64x2.promote_low_f32x4 (local.get $y)))
+                         (f64x2.promote_low_f32x4 (local.get $z)))))
+            (local.set $x (i8x16.shuffle 8 9 10 11 12 13 14 15 0 1 2 3 4 5 6 7 (local.get $x) (local.get $x)))
+            (local.set $y (i8x16.shuffle 8 9 10 11 12 13 14 15 0 1 2 3 4 5 6 7 (local.get $y) (local.get $y)))
+            (local.set $z (i8x16.shuffle 8 9 10 11 12 13 14 15 0 1 2 3 4 5 6 7 (local.get $z) (local.get $z)))
+            (local.set $hi (f32x4.demote_f64x2_zero
+              (f64x2.add (f64x2.add (f64x2.promote_low_f32x4 (local.get $x)) (f64x2.promote_low_f32x4 (local.get $y)))
+                         (f64x2.promote_low_f32x4 (local.get $z)))))
+            (v128.store (local.get $po) (i8x16.shuffle 0 1 2 3 4 5 6 7 16 17 18 19 20 21 22 23 (local.get $lo) (local.get $hi)))
+            (local.set $ps (i32.add (local.get $ps) (i32.const 16)))
+            (local.set $pd (i32.add (local.get $pd) (i32.const 16)))
+            (local.set $pb (i32.add (local.get $pb) (i32.const 16)))
+            (local.set $po (i32.add (local.get $po) (i32.const 16)))
+            (local.set $c (i32.add (local.get $c) (i32.const 4)))
+            (br $c_loop)))
+        (block $t_done
+          (loop $t_loop
+            (br_if $t_done (i32.ge_u (local.get $c) (local.get $H)))
+            (f32.store (local.get $po) (f32.demote_f64
+              (f64.add (f64.add (f64.promote_f32 (f32.load (local.get $ps))) (f64.promote_f32 (f32.load (local.get $pd))))
+                       (f64.promote_f32 (f32.load (local.get $pb))))))
+            (local.set $ps (i32.add (local.get $ps) (i32.const 4)))
+            (local.set $pd (i32.add (local.get $pd) (i32.const 4)))
+            (local.set $pb (i32.add (local.get $pb) (i32.const 4)))
+            (local.set $po (i32.add (local.get $po) (i32.const 4)))
+            (local.set $c (i32.add (local.get $c) (i32.const 1)))
+            (br $t_loop)))
+        (local.set $e (i32.add (local.get $e) (i32.const 1)))
+        (br $e_loop))))
+
+  ;; Zero n float32 values at $ptr.
+  (func $zero (param $ptr i32) (param $n i32)
+    (local $end i32) (local $end4 i32)
+    (local.set $end (i32.add (local.get $ptr) (i32.shl (local.get $n) (i32.const 2))))
+    (local.set $end4 (i32.add (local.get $ptr) (i32.shl (i32.and (local.get $n) (i32.const -4)) (i32.const 2))))
+    (block $done
+      (loop $l
+        (br_if $done (i32.ge_u (local.get $ptr) (local.get $end4)))
+        (v128.store (local.get $ptr) (v128.const i32x4 0 0 0 0))
+        (local.set $ptr (i32.add (local.get $ptr) (i32.const 16)))
+        (br $l)))
+    (block $done2
+      (loop $l2
+        (br_if $done2 (i32.ge_u (local.get $ptr) (local.get $end)))
+        (f32.store (local.get $ptr) (f32.const 0))
+        (local.set $ptr (i32.add (local.get $ptr) (i32.const 4)))
+        (br $l2))))
+
+  ;; out [nodes, 2H] = 0; then out[src[e], c] += dy[e, c] and out[dst[e], H + c] += dy[e, c], edges in order.
+  (func (export "scatter_pair") (param $dy i32) (param $src i32) (param $dst i32) (param $out i32) (param $nodes i32) (param $E i32) (param $H i32)
+    (local $e i32) (local $c i32) (local $ps i32) (local $pd i32) (local $pg i32) (local $H4 i32) (local $g v128) (local $gs f32)
+    (call $zero (local.get $out) (i32.mul (local.get $nodes) (i32.shl (local.get $H) (i32.const 1))))
+    (local.set $H4 (i32.and (local.get $H) (i32.const -4)))
+    (local.set $pg (local.get $dy))
+    (block $e_done
+      (loop $e_loop
+        (br_if $e_done (i32.ge_u (local.get $e) (local.get $E)))
+        (local.set $ps (i32.add (local.get $out)
+          (i32.shl (i32.mul (i32.load (i32.add (local.get $src) (i32.shl (local.get $e) (i32.const 2)))) (local.get $H)) (i32.const 3))))
+        (local.set $pd (i32.add (i32.add (local.get $out) (i32.shl (local.get $H) (i32.const 2)))
+          (i32.shl (i32.mul (i32.load (i32.add (local.get $dst) (i32.shl (local.get $e) (i32.const 2)))) (local.get $H)) (i32.const 3))))
+        (local.set $c (i32.const 0))
+        (block $c_done
+          (loop $c_loop
+            (br_if $c_done (i32.ge_u (local.get $c) (local.get $H4)))
+            (local.set $g (v128.load (local.get $pg)))
+            (v128.store (local.get $ps) (f32x4.add (v128.load (local.get $ps)) (local.get $g)))
+            (v128.store (local.get $pd) (f32x4.add (v128.load (local.get $pd)) (local.get $g)))
+            (local.set $ps (i32.add (local.get $ps) (i32.const 16)))
+            (local.set $pd (i32.add (local.get $pd) (i32.const 16)))
+            (local.set $pg (i32.add (local.get $pg) (i32.const 16)))
+            (local.set $c (i32.add (local.get $c) (i32.const 4)))
+            (br $c_loop)))
+        (block $t_done
+          (loop $t_loop
+            (br_if $t_done (i32.ge_u (local.get $c) (local.get $H)))
+            (local.set $gs (f32.load (local.get $pg)))
+            (f32.store (local.get $ps) (f32.add (f32.load (local.get $ps)) (local.get $gs)))
+            (f32.store (local.get $pd) (f32.add (f32.load (local.get $pd)) (local.get $gs)))
+            (local.set $ps (i32.add (local.get $ps) (i32.const 4)))
+            (local.set $pd (i32.add (local.get $pd) (i32.const 4)))
+            (local.set $pg (i32.add (local.get $pg) (i32.const 4)))
+            (local.set $c (i32.add (local.get $c) (i32.const 1)))
+            (br $t_loop)))
+        (local.set $e (i32.add (local.get $e) (i32.const 1)))
+        (br $e_loop))))
+
+  ;; out [rows, C] = 0; then out[arg[o], o mod C] += dy[o] for every o with arg[o] >= 0, in order.
+  (func (export "scatter_by_arg") (param $dy i32) (param $arg i32) (param $out i32) (param $rows i32) (param $n i32) (param $C i32)
+    (local $o i32) (local $c i32) (local $a i32) (local $q i32)
+    (call $zero (local.get $out) (i32.mul (local.get $rows) (local.get $C)))
+    (block $done
+      (loop $l
+        (br_if $done (i32.ge_u (local.get $o) (local.get $n)))
+        (local.set $a (i32.load (i32.add (local.get $arg) (i32.shl (local.get $o) (i32.const 2)))))
+        (if (i32.ge_s (local.get $a) (i32.const 0))
+          (then
+            (local.set $q (i32.add (local.get $out) (i32.shl (i32.add (i32.mul (local.get $a) (local.get $C)) (local.get $c)) (i32.const 2))))
+            (f32.store (local.get $q) (f32.add (f32.load (local.get $q))
+              (f32.load (i32.add (local.get $dy) (i32.shl (local.get $o) (i32.const 2))))))))
+        (local.set $c (i32.add (local.get $c) (i32.const 1)))
+        (if (i32.eq (local.get $c) (local.get $C)) (then (local.set $c (i32.const 0))))
+        (local.set $o (i32.add (local.get $o) (i32.const 1)))
+        (br $l))))
+
+  ;; Per segment and channel max ($isMax = 1) or min of x [E, C] over ids; vals/arg [S, C].
+  ;; The first edge of a segment fills its row; a later edge wins a channel only if
+  ;; strictly better, or if it is NaN and the current value is not. Empty segments: 0 and -1.
+  (func (export "segment_extreme") (param $x i32) (param $ids i32) (param $vals i32) (param $arg i32) (param $E i32) (param $C i32) (param $S i32) (param $isMax i32)
+    (local $e i32) (local $c i32) (local $C4 i32) (local $px i32) (local $pv i32) (local $pa i32) (local $n i32)
+    (local $v v128) (local $best v128) (local $better v128) (local $ev v128)
+    (local $vs f32) (local $bs f32) (local $win i32)
+    (local.set $n (i32.mul (local.get $S) (local.get $C)))
+    (call $zero (local.get $vals) (local.get $n))
+    ;; arg = -1 everywhere; arg[s, 0] >= 0 then marks a segment already seen
+    (local.set $pa (local.get $arg))
+    (local.set $c (i32.const 0))
+    (block $f_done
+      (loop $f
+        (br_if $f_done (i32.ge_u (local.get $c) (local.get $n)))
+        (i32.store (local.get $pa) (i32.const -1))
+        (local.set $pa (i32.add (local.get $pa) (i32.const 4)))
+        (local.set $c (i32.add (local.get $c) (i32.const 1)))
+        (br $f)))
+    (local.set $C4 (i32.and (local.get $C) (i32.const -4)))
+    (local.set $px (local.get $x))
+    (block $e_done
+      (loop $e_loop
+        (br_if $e_done (i32.ge_u (local.get $e) (local.get $E)))
+        (local.set $pv (i32.shl (i32.mul (i32.load (i32.add (local.get $ids) (i32.shl (local.get $e) (i32.const 2)))) (local.get $C)) (i32.const 2)))
+        (local.set $pa (i32.add (local.get $arg) (local.get $pv)))
+        (local.set $pv (i32.add (local.get $vals) (local.get $pv)))
+        (local.set $ev (i32x4.splat (local.get $e)))
+        (if (i32.lt_s (i32.load (local.get $pa)) (i32.const 0))
+          (then
+            ;; first edge of this segment
+            (local.set $c (i32.const 0))
+            (block $w_done
+              (loop $w
+                (br_if $w_done (i32.ge_u (local.get $c) (local.get $C)))
+                (f32.store (local.get $pv) (f32.load (local.get $px)))
+                (i32.store (local.get $pa) (local.get $e))
+                (local.set $px (i32.add (local.get $px) (i32.const 4)))
+                (local.set $pv (i32.add (local.get $pv) (i32.const 4)))
+                (local.set $pa (i32.add (local.get $pa) (i32.const 4)))
+                (local.set $c (i32.add (local.get $c) (i32.const 1)))
+                (br $w))))
+          (else
+            (local.set $c (i32.const 0))
+            (block $c_done
+              (loop $c_loop
+                (br_if $c_done (i32.ge_u (local.get $c) (local.get $C4)))
+                (local.set $v (v128.load (local.get $px)))
+                (local.set $best (v128.load (local.get $pv)))
+                (local.set $better (v128.or
+                  (select (f32x4.gt (local.get $v) (local.get $best)) (f32x4.lt (local.get $v) (local.get $best)) (local.get $isMax))
+                  (v128.and (f32x4.ne (local.get $v) (local.get $v)) (f32x4.eq (local.get $best) (local.get $best)))))
+                (v128.store (local.get $pv) (v128.bitselect (local.get $v) (local.get $best) (local.get $better)))
+                (v128.store (local.get $pa) (v128.bitselect (local.get $ev) (v128.load (local.get $pa)) (local.get $better)))
+                (local.set $px (i32.add (local.get $px) (i32.const 16)))
+                (local.set $pv (i32.add (local.get $pv) (i32.const 16)))
+                (local.set $pa (i32.add (local.get $pa) (i32.const 16)))
+                (local.set $c (i32.add (local.get $c) (i32.const 4)))
+                (br $c_loop)))
+            (block $t_done
+              (loop $t_loop
+                (br_if $t_done (i32.ge_u (local.get $c) (local.get $C)))
+                (local.set $vs (f32.load (local.get $px)))
+                (local.set $bs (f32.load (local.get $pv)))
+                (local.set $win (i32.or
+                  (select (f32.gt (local.get $vs) (local.get $bs)) (f32.lt (local.get $vs) (local.get $bs)) (local.get $isMax))
+                  (i32.and (f32.ne (local.get $vs) (local.get $vs)) (f32.eq (local.get $bs) (local.get $bs)))))
+                (if (local.get $win)
+                  (then
+                    (f32.store (local.get $pv) (local.get $vs))
+                    (i32.store (local.get $pa) (local.get $e))))
+                (local.set $px (i32.add (local.get $px) (i32.const 4)))
+                (local.set $pv (i32.add (local.get $pv) (i32.const 4)))
+                (local.set $pa (i32.add (local.get $pa) (i32.const 4)))
+                (local.set $c (i32.add (local.get $c) (i32.const 1)))
+                (br $t_loop)))))
+        (local.set $e (i32.add (local.get $e) (i32.const 1)))
+        (br $e_loop))))
+)

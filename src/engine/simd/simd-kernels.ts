@@ -1,0 +1,115 @@
+/**
+ * Farfield's own WASM SIMD kernels (src/engine/simd/kernels.wat), run on the
+ * tfjs WASM backend's memory so inputs and outputs are used in place.
+ *
+ * Why: the backend's matmul hands every product to XNNPACK, which packs the
+ * right-hand operand afresh for each new tensor (about 7 ns per element here);
+ * for the small, fresh operands of a training step (every gradient and most
+ * forward products) that packing costs more than the arithmetic. Our kernel
+ * reads B in place and was 2-4x faster on the reference step's shapes.
+ *
+ * Every kernel reproduces the float32 operations, in order, of the path it
+ * replaces, so results are bit-identical with or without it (checked by
+ * test/engine/simd-kernels.test.ts); where the module cannot load (no WASM
+ * SIMD, or a shared-memory threaded build) callers use the stock path.
+ */
+import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
+import type { TensorInfo } from '@tensorflow/tfjs-core';
+import { KERNELS_WASM_BASE64 } from './kernels-binary.ts';
+
+interface Exports {
+  mm_tn(a: number, b: number, c: number, K: number, M: number, N: number): void;
+  mm_nn(a: number, b: number, c: number, K: number, M: number, N: number, bias: number, relu: number): void;
+  gather_pair_add(p: number, src: number, dst: number, b: number, out: number, E: number, H: number): void;
+  scatter_pair(dy: number, src: number, dst: number, out: number, nodes: number, E: number, H: number): void;
+  scatter_by_arg(dy: number, arg: number, out: number, rows: number, n: number, C: number): void;
+  segment_extreme(x: number, ids: number, vals: number, arg: number, E: number, C: number, S: number, isMax: number): void;
+}
+
+export interface SimdKernels {
+  /** C[M,N] = Aᵀ·B for A [K,M], B [K,N] (float32, row-major, batch 1). */
+  matMulTN(a: TensorInfo, b: TensorInfo, c: TensorInfo, K: number, M: number, N: number): void;
+  /** C[M,N] = act(bias + A·B) for A [M,K], B [K,N]; bias [N] or null; act relu or linear. */
+  matMulNN(a: TensorInfo, b: TensorInfo, c: TensorInfo, K: number, M: number, N: number, bias: TensorInfo | null, relu: boolean): void;
+  /** out[e, :] = p[src[e], :H] + p[dst[e], H:] + b[e, :] (one float64 sum, rounded once). Ids must be checked. */
+  gatherPairAdd(p: TensorInfo, src: TensorInfo, dst: TensorInfo, b: TensorInfo, out: TensorInfo, E: number, H: number): void;
+  /** out [nodes, 2H] = scatter of dy [E, H] to rows src (first half) and dst (second half). Ids must be checked. */
+  scatterPair(dy: TensorInfo, src: TensorInfo, dst: TensorInfo, out: TensorInfo, nodes: number, E: number, H: number): void;
+  /** out [rows, C] = 0, then out[arg[o], o mod C] += dy[o] where arg[o] >= 0; arg must be < rows. */
+  scatterByArg(dy: TensorInfo, arg: TensorInfo, out: TensorInfo, rows: number, n: number, C: number): void;
+  /** Per segment and channel max or min with its arg edge (kernels-graph.ts semantics). Ids must be checked. */
+  segmentExtreme(x: TensorInfo, ids: TensorInfo, vals: TensorInfo, arg: TensorInfo, E: number, C: number, S: number, isMax: boolean): void;
+}
+
+/** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
+interface EmscriptenModule {
+  asm?: { memory?: unknown };
+  wasmMemory?: unknown;
+  wasmExports?: { memory?: unknown };
+}
+
+function backendMemory(backend: BackendWasm): WebAssembly.Memory | null {
+  const module = backend.wasm as unknown as EmscriptenModule;
+  for (const candidate of [module.asm?.memory, module.wasmMemory, module.wasmExports?.memory]) {
+    if (candidate instanceof WebAssembly.Memory) return candidate;
+  }
+  return null;
+}
+
+function decode(base64: string): Uint8Array {
+  const text = atob(base64);
+  const bytes = new Uint8Array(text.length);
+  for (let i = 0; i < text.length; i++) bytes[i] = text.charCodeAt(i);
+  return bytes;
+}
+
+const loaded = new WeakMap<object, SimdKernels | null>();
+let disabled = false;
+
+/** Turn the SIMD kernels off (benchmarks and tests compare both paths). */
+export function setSimdKernelsEnabled(enabled: boolean): void {
+  disabled = !enabled;
+}
+
+function load(backend: BackendWasm): SimdKernels | null {
+  const memory = backendMemory(backend);
+  // A threaded build shares its memory; our module imports a plain one.
+  if (memory == null || (typeof SharedArrayBuffer !== 'undefined' && memory.buffer instanceof SharedArrayBuffer)) return null;
+  let exports: Exports;
+  try {
+    // Synchronous compile is allowed here: the module is ~1 kB (browsers cap sync compiles at 4 kB on the main thread).
+    const module = new WebAssembly.Module(decode(KERNELS_WASM_BASE64) as BufferSource);
+    exports = new WebAssembly.Instance(module, { env: { memory } }).exports as unknown as Exports;
+  } catch {
+    return null; // no WASM SIMD here: the stock path is used
+  }
+  const offset = (t: TensorInfo): number => backend.dataIdMap.get(t.dataId)!.memoryOffset;
+  return {
+    matMulTN(a, b, c, K, M, N) {
+      exports.mm_tn(offset(a), offset(b), offset(c), K, M, N);
+    },
+    matMulNN(a, b, c, K, M, N, bias, relu) {
+      exports.mm_nn(offset(a), offset(b), offset(c), K, M, N, bias == null ? -1 : offset(bias), relu ? 1 : 0);
+    },
+    gatherPairAdd(p, src, dst, b, out, E, H) {
+      exports.gather_pair_add(offset(p), offset(src), offset(dst), offset(b), offset(out), E, H);
+    },
+    scatterPair(dy, src, dst, out, nodes, E, H) {
+      exports.scatter_pair(offset(dy), offset(src), offset(dst), offset(out), nodes, E, H);
+    },
+    scatterByArg(dy, arg, out, rows, n, C) {
+      exports.scatter_by_arg(offset(dy), offset(arg), offset(out), rows, n, C);
+    },
+    segmentExtreme(x, ids, vals, arg, E, C, S, isMax) {
+      exports.segment_extreme(offset(x), offset(ids), offset(vals), offset(arg), E, C, S, isMax ? 1 : 0);
+    },
+  };
+}
+
+/** The kernels bound to this backend's memory, or null where they cannot run. */
+export function simdKernels(backend: BackendWasm): SimdKernels | null {
+  if (disabled) return null;
+  const key = backend.wasm as unknown as object;
+  if (!loaded.has(key)) loaded.set(key, load(backend));
+  return loaded.get(key) ?? null;
+}

@@ -1,0 +1,155 @@
+/**
+ * Farfield's SIMD kernels (src/engine/simd/) must give exactly the bits of the
+ * paths they replace: XNNPACK's matmul (plain, fused bias/relu, after an
+ * explicit transpose) and the JavaScript graph loops. Each case runs the same
+ * op with the module on and off and compares every float with Object.is, on
+ * awkward shapes (tails of 1-3 lanes), NaN, -0, ties and empty segments. The
+ * reference is the stock path itself, so these checks are common practice
+ * (differential testing), not an outside source.
+ */
+import { afterEach, beforeAll, describe, expect, it } from 'vitest';
+import fs from 'node:fs';
+import * as tf from '@tensorflow/tfjs-core';
+import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
+import { initBackend } from '../../src/engine/backend.ts';
+import { setSimdKernelsEnabled, simdKernels } from '../../src/engine/simd/simd-kernels.ts';
+import { gatherPairAdd, segmentMax, segmentMin } from '../../src/model/ops.ts';
+import { Rng } from '../../src/util/rng.ts';
+import { compileKernels, renderBinaryModule } from '../../scripts/build-simd.mjs';
+
+beforeAll(async () => {
+  await initBackend('wasm');
+});
+
+afterEach(() => setSimdKernelsEnabled(true));
+
+function values(rng: Rng, n: number, specials = true): Float32Array {
+  const out = new Float32Array(n);
+  for (let i = 0; i < n; i++) out[i] = rng.uniform(-3, 3);
+  if (specials && n > 8) {
+    out[1] = NaN;
+    out[2] = -0;
+    out[5] = out[6]!; // a tie
+  }
+  return out;
+}
+
+/** Run `op` with the SIMD module on and off; return both results as plain arrays. */
+function bothWays(op: () => tf.Tensor | tf.Tensor[]): [number[][], number[][]] {
+  const read = (r: tf.Tensor | tf.Tensor[]) => (Array.isArray(r) ? r : [r]).map((t) => Array.from(t.dataSync()));
+  setSimdKernelsEnabled(true);
+  const on = tf.tidy(() => read(op()));
+  setSimdKernelsEnabled(false);
+  const off = tf.tidy(() => read(op()));
+  setSimdKernelsEnabled(true);
+  return [on, off];
+}
+
+function expectSameBits(on: number[][], off: number[][]): void {
+  expect(on.length).toBe(off.length);
+  for (let t = 0; t < on.length; t++) {
+    const a = on[t]!;
+    const b = off[t]!;
+    expect(a.length).toBe(b.length);
+    const differing = a.map((v, i) => (Object.is(v, b[i]) ? -1 : i)).filter((i) => i >= 0);
+    expect(differing.slice(0, 5).map((i) => [i, a[i], b[i]])).toEqual([]);
+  }
+}
+
+describe('SIMD module', () => {
+  it('loads on the WASM backend in Node', () => {
+    expect(simdKernels(tf.backend() as unknown as BackendWasm)).not.toBeNull();
+  });
+
+  it('the committed binary is the compiled kernels.wat (run `npm run build:simd` after editing it)', async () => {
+    const text = fs.readFileSync(new URL('../../src/engine/simd/kernels.wat', import.meta.url), 'utf8');
+    const committed = fs.readFileSync(new URL('../../src/engine/simd/kernels-binary.ts', import.meta.url), 'utf8');
+    expect(committed).toBe(renderBinaryModule(await compileKernels(text)));
+  });
+});
+
+describe('matmul on the SIMD kernel is bit-identical to XNNPACK', () => {
+  const shapes: [number, number, number][] = [
+    [512, 32, 32],
+    [2048, 32, 32],
+    [64, 96, 32],
+    [17, 5, 13],
+    [33, 7, 9],
+    [40, 1, 3],
+    [24, 32, 1],
+  ];
+  for (const [M, K, N] of shapes) {
+    it(`A·B, Aᵀ·B, A·Bᵀ and fused bias/relu for M=${M} K=${K} N=${N}`, () => {
+      const rng = new Rng(M * 1000 + K * 10 + N);
+      const a = tf.tensor2d(values(rng, M * K), [M, K]);
+      const b = tf.tensor2d(values(rng, K * N, false), [K, N]);
+      const bias = tf.tensor1d(values(rng, N, false));
+      const at = tf.tensor2d(values(rng, K * M), [K, M]);
+      const bt = tf.tensor2d(values(rng, N * K, false), [N, K]);
+      const [on, off] = bothWays(() => [
+        tf.matMul(a, b),
+        tf.matMul(at, b, true, false),
+        tf.matMul(a, bt, false, true),
+        tf.fused.matMul({ a, b, bias }),
+        tf.fused.matMul({ a, b, bias, activation: 'relu' }),
+        tf.fused.matMul({ a, b, activation: 'relu' }),
+        tf.fused.matMul({ a, b: bt, transposeB: true, bias, activation: 'relu' }),
+      ]);
+      expectSameBits(on, off);
+      tf.dispose([a, b, bias, at, bt]);
+    });
+  }
+
+  it('gradients of a small dense network are bit-identical', () => {
+    const rng = new Rng(7);
+    const x = tf.tensor2d(values(rng, 300 * 12, false), [300, 12]);
+    const w1 = tf.tensor2d(values(rng, 12 * 32, false), [12, 32]);
+    const b1 = tf.tensor1d(values(rng, 32, false));
+    const w2 = tf.tensor2d(values(rng, 32 * 5, false), [32, 5]);
+    const f = (p: tf.Tensor, q: tf.Tensor, r: tf.Tensor) =>
+      tf.sum(tf.square(tf.matMul(tf.fused.matMul({ a: x, b: p as tf.Tensor2D, bias: q, activation: 'relu' }), r as tf.Tensor2D)));
+    const [on, off] = bothWays(() => tf.grads(f)([w1, b1, w2]));
+    expectSameBits(on, off);
+    tf.dispose([x, w1, b1, w2]);
+  });
+});
+
+describe('graph kernels on the SIMD module are bit-identical to the JavaScript loops', () => {
+  for (const [nodes, edges, H] of [
+    [30, 120, 32],
+    [9, 40, 7],
+    [5, 3, 1],
+    [12, 0, 4],
+  ] as const) {
+    it(`gatherPairAdd, its gradient, segment max/min and their gradients (nodes ${nodes}, edges ${edges}, width ${H})`, () => {
+      const rng = new Rng(nodes * 7 + edges + H);
+      // Some nodes get no edge (empty segments), some many.
+      const src = tf.tensor1d(Array.from({ length: edges }, () => rng.int(0, nodes - 1)), 'int32');
+      const dst = tf.tensor1d(Array.from({ length: edges }, () => rng.int(0, Math.max(0, nodes - 3))), 'int32');
+      const p = tf.tensor2d(values(rng, nodes * 2 * H), [nodes, 2 * H]);
+      const b = tf.tensor2d(values(rng, edges * H), [edges, H]);
+      const x = tf.tensor2d(values(rng, edges * H), [edges, H]);
+      const [on, off] = bothWays(() => {
+        const pair = gatherPairAdd(p, src, dst, b);
+        const [dp, db] = tf.grads((pp: tf.Tensor, bb: tf.Tensor) => tf.sum(tf.mul(gatherPairAdd(pp as tf.Tensor2D, src, dst, bb as tf.Tensor2D), x)))([p, b]);
+        const mx = segmentMax(x, dst, nodes);
+        const mn = segmentMin(x, dst, nodes);
+        const [gx] = tf.grads((xx: tf.Tensor) => tf.sum(tf.mul(segmentMax(xx as tf.Tensor2D, dst, nodes), tf.onesLike(mx).mul(1.5))))([x]);
+        const [gn] = tf.grads((xx: tf.Tensor) => tf.sum(segmentMin(xx as tf.Tensor2D, dst, nodes)))([x]);
+        return [pair, dp!, db!, mx, mn, gx!, gn!];
+      });
+      expectSameBits(on, off);
+      tf.dispose([src, dst, p, b, x]);
+    });
+  }
+
+  it('still refuses out-of-range ids with the SIMD module on', () => {
+    const p = tf.zeros([3, 4]) as tf.Tensor2D;
+    const b = tf.zeros([2, 2]) as tf.Tensor2D;
+    const ok = tf.tensor1d([0, 1], 'int32');
+    const bad = tf.tensor1d([0, 3], 'int32');
+    expect(() => gatherPairAdd(p, ok, bad, b)).toThrow(/out of range 0..2/);
+    expect(() => segmentMax(b, bad, 3)).toThrow(/out of range 0..2/);
+    tf.dispose([p, b, ok, bad]);
+  });
+});
