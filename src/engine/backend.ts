@@ -9,7 +9,8 @@
  * gradient); src/engine/kernels-matmul.ts re-registers it to transpose
  * explicitly and take the fast path. src/engine/kernels-identity.ts makes the
  * WASM Identity (used by the engine to save tensors for backprop) share the
- * buffer instead of copying it.
+ * buffer instead of copying it. src/engine/kernels-layout.ts moves Concat,
+ * SplitV and bias-gradient sums onto Farfield's SIMD module.
  *
  * Import tf from '@tensorflow/tfjs-core' everywhere in engine code (never the
  * umbrella '@tensorflow/tfjs', which would pull in WebGL).
@@ -26,6 +27,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import { registerGraphKernels } from './kernels-graph.ts';
 import { patchWasmIdentity } from './kernels-identity.ts';
+import { patchWasmLayout } from './kernels-layout.ts';
 import { patchWasmMatMul } from './kernels-matmul.ts';
 
 export type BackendName = 'wasm' | 'cpu';
@@ -145,6 +147,7 @@ async function doInit(
   if (name === 'wasm') {
     patchWasmMatMul();
     patchWasmIdentity();
+    patchWasmLayout();
   }
 
   const before = isNode() ? nodeErrorListeners() : null;

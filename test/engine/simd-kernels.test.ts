@@ -153,3 +153,56 @@ describe('graph kernels on the SIMD module are bit-identical to the JavaScript l
     tf.dispose([p, b, ok, bad]);
   });
 });
+
+describe('concat, split and column sums on the SIMD module are bit-identical to the stock kernels', () => {
+  it('concat along the last and the first axis, float32 and int32, with empty and odd-width parts', () => {
+    const rng = new Rng(11);
+    const a = tf.tensor2d(values(rng, 7 * 5), [7, 5]);
+    const b = tf.tensor2d(values(rng, 7 * 3), [7, 3]);
+    const c = tf.tensor2d(values(rng, 7 * 8), [7, 8]);
+    const empty = tf.zeros([7, 0]);
+    const ints = [tf.tensor2d([1, 2, 3, 4], [2, 2], 'int32'), tf.tensor2d([5, 6], [2, 1], 'int32')];
+    const [on, off] = bothWays(() => [
+      tf.concat([a, b, c], 1),
+      tf.concat([a, empty, b], 1),
+      tf.concat([a, a], 0),
+      tf.concat(ints, 1),
+      tf.concat([tf.reshape(a, [7, 5, 1]), tf.reshape(a, [7, 5, 1])], 2),
+    ]);
+    expectSameBits(on, off);
+    tf.dispose([a, b, c, empty, ...ints]);
+  });
+
+  it('split along the last and a middle axis, and the gradient of a concat', () => {
+    const rng = new Rng(12);
+    const x = tf.tensor2d(values(rng, 9 * 13), [9, 13]);
+    const y = tf.tensor3d(values(rng, 4 * 6 * 3), [4, 6, 3]);
+    const [on, off] = bothWays(() => [
+      ...tf.split(x, [5, 0, 8], 1),
+      ...tf.split(y, 3, 1),
+      ...tf.grads((p: tf.Tensor, q: tf.Tensor) => tf.sum(tf.mul(tf.concat([p, q], 1), tf.range(0, 13).reshape([1, 13]))))([
+        tf.slice(x, [0, 0], [9, 6]),
+        tf.slice(x, [0, 6], [9, 7]),
+      ]),
+    ]);
+    expectSameBits(on, off);
+    tf.dispose([x, y]);
+  });
+
+  it('sums over every axis but the last (bias gradients); other reductions keep the stock path', () => {
+    const rng = new Rng(13);
+    const x = tf.tensor3d(values(rng, 1 * 301 * 13), [1, 301, 13]);
+    const w = tf.tensor2d(values(rng, 512 * 32), [512, 32]);
+    const [on, off] = bothWays(() => [
+      tf.sum(x, [0, 1]),
+      tf.sum(x, [1, 0], true),
+      tf.sum(w, 0),
+      tf.sum(w, -2),
+      tf.sum(w, 1),
+      tf.sum(w),
+      tf.sum(x, [1]),
+    ]);
+    expectSameBits(on, off);
+    tf.dispose([x, w]);
+  });
+});

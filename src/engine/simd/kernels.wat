@@ -11,6 +11,9 @@
 ;;   scatter_pair, scatter_by_arg   float32 sums in edge order (a float64 sum of two
 ;;                float32 values rounded to float32 equals the float32 sum).
 ;;   segment_extreme   comparisons only; ties keep the lowest edge, a NaN wins.
+;;   copy_block   a strided copy of 4-byte values (concat and split).
+;;   col_sum      out[c] = ((0 + x[0,c]) + x[1,c]) + … in row order, the order of
+;;                the backend's Sum after it transposes the reduced axes inward.
 ;; Pointers are byte offsets into the shared memory; sizes are element counts.
 (module
   (import "env" "memory" (memory 1))
@@ -362,4 +365,71 @@
                 (br $t_loop)))))
         (local.set $e (i32.add (local.get $e) (i32.const 1)))
         (br $e_loop))))
+
+  ;; rows x width 4-byte values from src (row stride srcStride) to dst (row stride dstStride), in elements.
+  (func (export "copy_block") (param $src i32) (param $dst i32) (param $rows i32) (param $width i32) (param $srcStride i32) (param $dstStride i32)
+    (local $r i32) (local $c i32) (local $ps i32) (local $pd i32) (local $W4 i32)
+    (local.set $W4 (i32.and (local.get $width) (i32.const -4)))
+    (block $r_done
+      (loop $r_loop
+        (br_if $r_done (i32.ge_u (local.get $r) (local.get $rows)))
+        (local.set $ps (i32.add (local.get $src) (i32.shl (i32.mul (local.get $r) (local.get $srcStride)) (i32.const 2))))
+        (local.set $pd (i32.add (local.get $dst) (i32.shl (i32.mul (local.get $r) (local.get $dstStride)) (i32.const 2))))
+        (local.set $c (i32.const 0))
+        (block $c_done
+          (loop $c_loop
+            (br_if $c_done (i32.ge_u (local.get $c) (local.get $W4)))
+            (v128.store (local.get $pd) (v128.load (local.get $ps)))
+            (local.set $ps (i32.add (local.get $ps) (i32.const 16)))
+            (local.set $pd (i32.add (local.get $pd) (i32.const 16)))
+            (local.set $c (i32.add (local.get $c) (i32.const 4)))
+            (br $c_loop)))
+        (block $t_done
+          (loop $t_loop
+            (br_if $t_done (i32.ge_u (local.get $c) (local.get $width)))
+            (i32.store (local.get $pd) (i32.load (local.get $ps)))
+            (local.set $ps (i32.add (local.get $ps) (i32.const 4)))
+            (local.set $pd (i32.add (local.get $pd) (i32.const 4)))
+            (local.set $c (i32.add (local.get $c) (i32.const 1)))
+            (br $t_loop)))
+        (local.set $r (i32.add (local.get $r) (i32.const 1)))
+        (br $r_loop))))
+
+  ;; out[c] = sum over rows r of x[r, c] for x [rows, cols], rows in order, from 0.
+  (func (export "col_sum") (param $x i32) (param $out i32) (param $rows i32) (param $cols i32)
+    (local $r i32) (local $c i32) (local $p i32) (local $stride i32) (local $acc v128) (local $accs f32) (local $C4 i32)
+    (local.set $stride (i32.shl (local.get $cols) (i32.const 2)))
+    (local.set $C4 (i32.and (local.get $cols) (i32.const -4)))
+    (block $c_done
+      (loop $c_loop
+        (br_if $c_done (i32.ge_u (local.get $c) (local.get $C4)))
+        (local.set $acc (v128.const f32x4 0 0 0 0))
+        (local.set $p (i32.add (local.get $x) (i32.shl (local.get $c) (i32.const 2))))
+        (local.set $r (i32.const 0))
+        (block $r_done
+          (loop $r_loop
+            (br_if $r_done (i32.ge_u (local.get $r) (local.get $rows)))
+            (local.set $acc (f32x4.add (local.get $acc) (v128.load (local.get $p))))
+            (local.set $p (i32.add (local.get $p) (local.get $stride)))
+            (local.set $r (i32.add (local.get $r) (i32.const 1)))
+            (br $r_loop)))
+        (v128.store (i32.add (local.get $out) (i32.shl (local.get $c) (i32.const 2))) (local.get $acc))
+        (local.set $c (i32.add (local.get $c) (i32.const 4)))
+        (br $c_loop)))
+    (block $t_done
+      (loop $t_loop
+        (br_if $t_done (i32.ge_u (local.get $c) (local.get $cols)))
+        (local.set $accs (f32.const 0))
+        (local.set $p (i32.add (local.get $x) (i32.shl (local.get $c) (i32.const 2))))
+        (local.set $r (i32.const 0))
+        (block $r2_done
+          (loop $r2_loop
+            (br_if $r2_done (i32.ge_u (local.get $r) (local.get $rows)))
+            (local.set $accs (f32.add (local.get $accs) (f32.load (local.get $p))))
+            (local.set $p (i32.add (local.get $p) (local.get $stride)))
+            (local.set $r (i32.add (local.get $r) (i32.const 1)))
+            (br $r2_loop)))
+        (f32.store (i32.add (local.get $out) (i32.shl (local.get $c) (i32.const 2))) (local.get $accs))
+        (local.set $c (i32.add (local.get $c) (i32.const 1)))
+        (br $t_loop))))
 )

@@ -24,6 +24,8 @@ interface Exports {
   scatter_pair(dy: number, src: number, dst: number, out: number, nodes: number, E: number, H: number): void;
   scatter_by_arg(dy: number, arg: number, out: number, rows: number, n: number, C: number): void;
   segment_extreme(x: number, ids: number, vals: number, arg: number, E: number, C: number, S: number, isMax: number): void;
+  copy_block(src: number, dst: number, rows: number, width: number, srcStride: number, dstStride: number): void;
+  col_sum(x: number, out: number, rows: number, cols: number): void;
 }
 
 export interface SimdKernels {
@@ -39,6 +41,10 @@ export interface SimdKernels {
   scatterByArg(dy: TensorInfo, arg: TensorInfo, out: TensorInfo, rows: number, n: number, C: number): void;
   /** Per segment and channel max or min with its arg edge (kernels-graph.ts semantics). Ids must be checked. */
   segmentExtreme(x: TensorInfo, ids: TensorInfo, vals: TensorInfo, arg: TensorInfo, E: number, C: number, S: number, isMax: boolean): void;
+  /** Copy rows x width 4-byte values from src (starting at element srcStart, row stride srcStride) to dst likewise. */
+  copyBlock(src: TensorInfo, srcStart: number, dst: TensorInfo, dstStart: number, rows: number, width: number, srcStride: number, dstStride: number): void;
+  /** out[c] = sum of x[r, c] over rows in order, for x viewed as [rows, cols]. */
+  colSum(x: TensorInfo, out: TensorInfo, rows: number, cols: number): void;
 }
 
 /** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
@@ -99,6 +105,12 @@ function load(backend: BackendWasm): SimdKernels | null {
     },
     scatterByArg(dy, arg, out, rows, n, C) {
       exports.scatter_by_arg(offset(dy), offset(arg), offset(out), rows, n, C);
+    },
+    copyBlock(src, srcStart, dst, dstStart, rows, width, srcStride, dstStride) {
+      exports.copy_block(offset(src) + 4 * srcStart, offset(dst) + 4 * dstStart, rows, width, srcStride, dstStride);
+    },
+    colSum(x, out, rows, cols) {
+      exports.col_sum(offset(x), offset(out), rows, cols);
     },
     segmentExtreme(x, ids, vals, arg, E, C, S, isMax) {
       exports.segment_extreme(offset(x), offset(ids), offset(vals), offset(arg), E, C, S, isMax ? 1 : 0);
