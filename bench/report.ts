@@ -3,6 +3,7 @@
  * human-readable report. Field names are part of the interface (issue 9).
  */
 import type { AggregatorName } from '../src/experiment/spec.ts';
+import type { BrowserTiming } from './browser.ts';
 import type { LongRunReport } from './long-run.ts';
 import type { PresetTiming } from './presets.ts';
 import type { KernelCategory, KernelStat, MatmulStat } from './reference.ts';
@@ -92,6 +93,8 @@ export interface BenchDocument {
   workers: WorkersReport | null;
   presets: PresetTiming[];
   presetsNote: string;
+  /** The target preset in headless Chromium (Run pressed to "done"), or null when skipped. */
+  browser: BrowserTiming | null;
   tensors: {
     /** Live tensors in this process before and after all in-process benchmark work (must be equal). */
     tensorsBefore: number;
@@ -103,7 +106,7 @@ export interface BenchDocument {
 }
 
 export interface Target {
-  id: 'wasmOverCpu' | 'workerSpeedup' | 'presetWall' | 'fractionOfCeiling';
+  id: 'wasmOverCpu' | 'workerSpeedup' | 'presetWall' | 'browserOverCli' | 'fractionOfCeiling';
   description: string;
   value: number | null;
   threshold: number;
@@ -153,6 +156,17 @@ export function evaluateTargets(doc: Omit<BenchDocument, 'targets'>, targetPrese
       direction: 'atMost',
       unit: 's',
       note: !preset ? 'preset not run (--quick, --skip-presets or not in --presets)' : preset.error,
+    }),
+    target({
+      id: 'browserOverCli',
+      description: `${targetPreset} in headless Chromium over its CLI wall time`,
+      value: doc.browser?.wall != null && preset && !preset.error ? doc.browser.wall / preset.wall : null,
+      threshold: 1.5,
+      direction: 'atMost',
+      unit: 'x',
+      note: !doc.browser
+        ? 'browser not run (--quick or --skip-browser)'
+        : doc.browser.error ?? (!preset ? 'CLI time of the preset not measured' : doc.browser.fingerprint === preset.fingerprint ? 'same fingerprint as the CLI' : `fingerprint ${doc.browser.fingerprint} differs from the CLI's ${preset.fingerprint}`),
     }),
     target({
       id: 'fractionOfCeiling',
@@ -239,6 +253,16 @@ export function renderReport(doc: BenchDocument): string {
     }
   }
   lines.push(`  ${doc.presetsNote}`);
+  lines.push('');
+  const br = doc.browser;
+  if (br) {
+    lines.push(
+      `Browser: ${br.file} in Chromium ${br.browser ?? '?'} (${br.hardwareConcurrency ?? '?'} cores reported): ` +
+        (br.wall == null ? `not timed${br.error ? ` (${br.error})` : ''}` : `${f(br.wall, 1)} s from Run to done, fingerprint ${br.fingerprint ?? '—'}, ${br.simdKernels == null ? 'kernels not reported' : br.simdKernels ? 'SIMD kernels' : 'stock kernels'}; site build and load ${f(br.setupSeconds, 1)} s (not counted)`),
+    );
+  } else {
+    lines.push('Browser: skipped');
+  }
   lines.push('');
   const t = doc.tensors;
   const lr = t.longRun;

@@ -24,6 +24,7 @@ import {
   type ReferenceTrainer,
   type StepProfile,
 } from './reference.ts';
+import { timePresetInBrowser, type BrowserTiming } from './browser.ts';
 import { evaluateTargets, type BenchDocument, type PerAggregator } from './report.ts';
 import { measureWorkers, type WorkersReport } from './workers.ts';
 
@@ -32,6 +33,8 @@ export interface BenchOptions {
   /** Preset names (comma list) or undefined for all; ignored when skipPresets. */
   presets?: string;
   skipPresets: boolean;
+  /** Also time the target preset in headless Chromium (after the CLI presets). */
+  browser: boolean;
   longSteps: number;
   /** Reference timing per variant, seconds (split over the rounds). */
   seconds: number;
@@ -43,13 +46,14 @@ export interface BenchOptions {
   /** Aborting stops the preset being timed and skips the rest; the document is still returned. */
   stopPresets?: AbortSignal;
   /** Told when each phase starts. */
-  onPhase?: (phase: 'reference' | 'long-run' | 'workers' | 'presets') => void;
+  onPhase?: (phase: 'reference' | 'long-run' | 'workers' | 'presets' | 'browser') => void;
 }
 
 export function defaultOptions(quick: boolean): BenchOptions {
   return {
     quick,
     skipPresets: quick,
+    browser: !quick,
     longSteps: quick ? 200 : 2000,
     seconds: quick ? 0.5 : 9,
     rounds: quick ? 1 : 3,
@@ -220,6 +224,14 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
       'peakProcessRssMB = peak RSS of the whole child process (getrusage). Threads share one process, so RSS itself cannot be split per worker.';
   }
 
+  // ---- browser ----
+  let browser: BrowserTiming | null = null;
+  if (options.browser && !options.stopPresets?.aborted) {
+    options.onPhase?.('browser');
+    browser = await timePresetInBrowser(TARGET_PRESET, options.presetTimeoutSeconds, log);
+    log(`browser: ${TARGET_PRESET} ${browser.wall == null ? 'not timed' : `${browser.wall.toFixed(1)} s`}${browser.error ? ` (${browser.error})` : ''}`);
+  }
+
   const doc: Omit<BenchDocument, 'targets'> = {
     bench: 1,
     date: new Date().toISOString(),
@@ -286,6 +298,7 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
     workers,
     presets,
     presetsNote,
+    browser,
     tensors: { tensorsBefore, tensorsAfter, equal: tensorsBefore === tensorsAfter, longRun: long },
   };
   doc.machine.loadAverage.end = loadAverage();

@@ -14,7 +14,7 @@ export type ToWorker =
   | { type: 'crash'; id: number; how: 'throw' | 'exit' };
 
 export type FromWorker =
-  | { type: 'ready'; backend: BackendName; threads: number }
+  | { type: 'ready'; backend: BackendName; threads: number; simd: boolean }
   | { type: 'progress'; id: number; step: number; totalSteps: number; loss: number }
   | { type: 'done'; id: number; result: RunResult; tensors: number }
   | { type: 'error'; id: number | null; message: string };

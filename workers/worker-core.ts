@@ -5,7 +5,7 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { FromWorker, ToWorker } from './protocol.ts';
-import { initBackend } from '../src/engine/backend.ts';
+import { initBackend, type EngineInfo } from '../src/engine/backend.ts';
 import { executeRun } from '../src/experiment/run.ts';
 import type { SeedData } from '../src/experiment/datasets.ts';
 
@@ -13,7 +13,7 @@ import type { SeedData } from '../src/experiment/datasets.ts';
 const PROGRESS_INTERVAL_MS = 250;
 
 export function createWorkerCore(post: (message: FromWorker) => void): (message: ToWorker) => Promise<void> {
-  let ready: Promise<unknown> | null = null;
+  let ready: Promise<EngineInfo> | null = null;
   // Arms of the same seed share graphs; keep the last spec's data per seed.
   let cacheKey = '';
   let dataCache = new Map<number, SeedData>();
@@ -22,8 +22,8 @@ export function createWorkerCore(post: (message: FromWorker) => void): (message:
       switch (message.type) {
         case 'init': {
           ready = initBackend(message.backend, { threads: message.threads, wasmPaths: message.wasmPaths });
-          const info = (await ready) as { backend: 'wasm' | 'cpu'; threads: number };
-          post({ type: 'ready', backend: info.backend, threads: info.threads });
+          const info = await ready;
+          post({ type: 'ready', backend: info.backend, threads: info.threads, simd: info.simd });
           return;
         }
         case 'crash': {

@@ -15,7 +15,7 @@ export interface PoolEvents {
   onStart?: (plan: RunPlan) => void;
   onProgress?: (plan: RunPlan, step: number, totalSteps: number, loss: number) => void;
   onResult?: (result: RunResult) => void;
-  onReady?: (info: { backend: BackendName; threads: number }) => void;
+  onReady?: (info: { backend: BackendName; threads: number; simd: boolean }) => void;
 }
 
 export interface PoolOptions {
@@ -79,7 +79,7 @@ export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options
     worker.on('message', (message: FromWorker) => {
       switch (message.type) {
         case 'ready':
-          options.events?.onReady?.({ backend: message.backend, threads: message.threads });
+          options.events?.onReady?.({ backend: message.backend, threads: message.threads, simd: message.simd });
           next();
           return;
         case 'progress':

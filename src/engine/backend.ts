@@ -29,6 +29,8 @@ import { registerGraphKernels } from './kernels-graph.ts';
 import { patchWasmIdentity } from './kernels-identity.ts';
 import { patchWasmLayout } from './kernels-layout.ts';
 import { patchWasmMatMul } from './kernels-matmul.ts';
+import { simdKernels } from './simd/simd-kernels.ts';
+import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 
 export type BackendName = 'wasm' | 'cpu';
 
@@ -55,8 +57,15 @@ interface WasmModuleApi {
 
 let wasmApi: WasmModuleApi | null = null;
 let wasmInitialised = false;
-let active: { backend: BackendName; threads: number } | null = null;
-let pending: Promise<{ backend: BackendName; threads: number }> | null = null;
+/** What a host reports about its engine: backend, WASM threads, and whether Farfield's SIMD kernels run. */
+export interface EngineInfo {
+  backend: BackendName;
+  threads: number;
+  simd: boolean;
+}
+
+let active: EngineInfo | null = null;
+let pending: Promise<EngineInfo> | null = null;
 
 async function loadWasm(options: BackendOptions | undefined): Promise<WasmModuleApi> {
   if (wasmApi == null) {
@@ -132,7 +141,7 @@ function removeEmscriptenListeners(before: Map<string, Listener[]>): void {
 async function doInit(
   name: BackendName,
   options: BackendOptions | undefined,
-): Promise<{ backend: BackendName; threads: number }> {
+): Promise<EngineInfo> {
   if (name !== 'wasm' && name !== 'cpu') {
     throw new Error(`engine/backend: unknown backend '${String(name)}' (expected 'wasm' or 'cpu')`);
   }
@@ -171,7 +180,9 @@ async function doInit(
     const threaded = await tf.env().getAsync('WASM_HAS_MULTITHREAD_SUPPORT');
     threads = threaded ? Math.max(1, api.getThreadsCount()) : 1;
   }
-  active = { backend: name, threads };
+  // Same numbers either way (src/engine/simd/); reported because speed differs.
+  const simd = name === 'wasm' && simdKernels(tf.backend() as unknown as BackendWasm) != null;
+  active = { backend: name, threads, simd };
   return { ...active };
 }
 
@@ -182,7 +193,7 @@ async function doInit(
 export async function initBackend(
   name: BackendName = 'wasm',
   options?: { threads?: number; wasmPaths?: string | Record<string, string> },
-): Promise<{ backend: BackendName; threads: number }> {
+): Promise<EngineInfo> {
   // Serialise concurrent calls so setWasmPaths/setThreadsCount never race init.
   const previous = pending;
   const run = (async () => {

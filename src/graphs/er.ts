@@ -8,7 +8,9 @@
  * 2. extra edges between uniformly chosen unlinked pairs until the edge count is
  *    round(meanDegree * n / 2) (capped at n(n-1)/2, the complete graph).
  * So the mean degree is `params.meanDegree` (default 3) whenever that is at
- * least the tree's 2(n-1)/n. The law is not exactly G(n, m): the tree part is
+ * least the tree's 2(n-1)/n. With `params.edgeProbability` = p instead, the
+ * edge count is round(p · n(n-1)/2), as in G(n, p) on average: the mean degree
+ * then grows with n (p · (n-1)), so a size ladder also shifts degree. The law is not exactly G(n, m): the tree part is
  * biased toward a random recursive tree. Weights: uniform in `weightRange`,
  * drawn in edge-creation order.
  */
@@ -23,6 +25,13 @@ function generate(options: FamilyOptions): Graph {
   const { nodes: n, weightRange, rng, params } = options;
   const meanDegree = numberParam('er', params, 'meanDegree', DEFAULT_MEAN_DEGREE);
   if (meanDegree < 0) throw new Error(`graphs/er: params.meanDegree must be >= 0, got ${meanDegree}`);
+  const edgeProbability = params?.['edgeProbability'] === undefined ? null : numberParam('er', params, 'edgeProbability', 0);
+  if (edgeProbability !== null) {
+    if (!(edgeProbability >= 0 && edgeProbability <= 1)) {
+      throw new Error(`graphs/er: params.edgeProbability must be in 0..1, got ${edgeProbability}`);
+    }
+    if (params?.['meanDegree'] !== undefined) throw new Error('graphs/er: give params.meanDegree or params.edgeProbability, not both');
+  }
   const graph = emptyGraph('er', n, false, weightRange);
 
   const order = rng.shuffle(Array.from({ length: n }, (_, i) => i));
@@ -32,7 +41,8 @@ function generate(options: FamilyOptions): Graph {
   }
 
   const maxEdges = (n * (n - 1)) / 2;
-  const wanted = Math.min(maxEdges, Math.max(n - 1, Math.round((meanDegree * n) / 2)));
+  const target = edgeProbability === null ? (meanDegree * n) / 2 : edgeProbability * maxEdges;
+  const wanted = Math.min(maxEdges, Math.max(n - 1, Math.round(target)));
   if (wanted - graph.size > (maxEdges - graph.size) / 2) {
     // Dense request: enumerate the missing pairs and take a random subset
     // (rejection sampling would stall near the complete graph).

@@ -124,7 +124,9 @@ export class FfRunControls extends LitElement {
         >
         <span class="note">
           ${this.kept > 0 ? html`<span data-kept=${this.kept}>${this.kept} run${this.kept === 1 ? '' : 's'} kept from an earlier visit.</span>` : nothing}
-          ${this.engine ? html`Engine: tfjs ${this.engine.backend.toUpperCase()}, ${this.engine.threads} thread${this.engine.threads === 1 ? '' : 's'} per worker.` : 'Engine: tfjs WASM in web workers, no GPU needed.'}
+          ${this.engine
+            ? html`<span data-engine-simd=${this.engine.simd ? 'on' : 'off'}>Engine: tfjs ${this.engine.backend.toUpperCase()}, ${this.engine.threads} thread${this.engine.threads === 1 ? '' : 's'} per worker${this.engine.backend === 'wasm' ? (this.engine.simd ? ', SIMD kernels' : ', stock kernels (slower, same numbers)') : ''}.</span>`
+            : 'Engine: tfjs WASM in web workers, no GPU needed.'}
         </span>
         ${this.kept > 0 && !running
           ? html`<button type="button" class="quiet" data-action="forget" @click=${() => emit(this, 'ff-forget', null)}>Forget kept runs</button>`

@@ -34,6 +34,8 @@ export interface RunTrack {
 export interface EngineSummary {
   backend: string;
   threads: number;
+  /** Farfield's SIMD kernels in use (same numbers, faster); absent when not reported. */
+  simd?: boolean;
 }
 
 export interface RunSnapshot {
@@ -186,7 +188,7 @@ export class RunController {
       ...(this.options.faults ? { faults: this.options.faults } : {}),
       events: {
         onReady: (info) => {
-          if (this.pool === pool) this.update({ engine: { backend: info.backend, threads: info.threads } });
+          if (this.pool === pool) this.update({ engine: { backend: info.backend, threads: info.threads, simd: info.simd } });
         },
         onStart: (plan) => {
           if (this.pool !== pool) return;

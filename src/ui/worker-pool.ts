@@ -26,7 +26,7 @@ export interface PoolWorker {
 export type FaultKind = 'throw' | 'exit';
 
 export interface PoolEvents {
-  onReady?: (info: { backend: BackendName; threads: number }) => void;
+  onReady?: (info: { backend: BackendName; threads: number; simd: boolean }) => void;
   onStart?: (plan: RunPlan) => void;
   onProgress?: (plan: RunPlan, step: number, totalSteps: number, loss: number) => void;
   onResult?: (result: RunResult) => void;
@@ -136,7 +136,7 @@ export function runWorkerPool(spec: ExperimentSpec, plans: readonly RunPlan[], o
         switch (message.type) {
           case 'ready':
             ready = true;
-            options.events?.onReady?.({ backend: message.backend, threads: message.threads });
+            options.events?.onReady?.({ backend: message.backend, threads: message.threads, simd: message.simd });
             next();
             return;
           case 'progress':

@@ -12,7 +12,7 @@ import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { validateSpec } from '../../src/experiment/check.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
-import { serveStatic, type StaticServer } from './static-server.ts';
+import { serveStatic, type StaticServer } from '../../bench/static-server.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 // Its own build directory: sheet.test.ts may be building test-output/site at the same time.

@@ -15,7 +15,7 @@ import { join, resolve } from 'node:path';
 import { validateSpec } from '../../src/experiment/check.ts';
 import type { ExperimentSpec } from '../../src/experiment/spec.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
-import { serveStatic, type StaticServer } from './static-server.ts';
+import { serveStatic, type StaticServer } from '../../bench/static-server.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const SITE = join(ROOT, 'test-output', 'site');

@@ -63,7 +63,7 @@ function fakeFactory(script: Script) {
 const init = { type: 'init', backend: 'wasm' } as const;
 
 const normal: Script = (message, reply) => {
-  if (message.type === 'init') reply({ type: 'ready', backend: 'wasm', threads: 1 });
+  if (message.type === 'init') reply({ type: 'ready', backend: 'wasm', threads: 1, simd: true });
   else if (message.type === 'run') {
     reply({ type: 'progress', id: message.id, step: 1, totalSteps: 1, loss: 0.5 });
     reply({ type: 'done', id: message.id, result: okResult(message), tensors: 0 });
@@ -127,7 +127,7 @@ describe('browser worker pool', () => {
 
   it('cancel terminates every worker at once and records nothing more', async () => {
     const slow: Script = (message, reply) => {
-      if (message.type === 'init') reply({ type: 'ready', backend: 'wasm', threads: 1 });
+      if (message.type === 'init') reply({ type: 'ready', backend: 'wasm', threads: 1, simd: true });
       // 'run' never answers: the runs are "in flight" until cancelled.
     };
     const { create, created } = fakeFactory(slow);

@@ -99,12 +99,15 @@ describe('farfield bench --quick --json', () => {
   });
 
   it('lists every target with its value and verdict', () => {
-    expect(doc.targets.map((t) => t.id)).toEqual(['wasmOverCpu', 'workerSpeedup', 'presetWall', 'fractionOfCeiling']);
+    expect(doc.targets.map((t) => t.id)).toEqual(['wasmOverCpu', 'workerSpeedup', 'presetWall', 'browserOverCli', 'fractionOfCeiling']);
     for (const t of doc.targets) {
       expect(['pass', 'fail', 'not measured']).toContain(t.status);
       expect(t.pass === null ? t.status === 'not measured' : t.status === (t.pass ? 'pass' : 'fail')).toBe(true);
     }
     expect(doc.targets.find((t) => t.id === 'presetWall')?.status).toBe('not measured');
+    // Quick mode runs no browser: the ratio is not measured, and says why.
+    expect(doc.browser).toBeNull();
+    expect(doc.targets.find((t) => t.id === 'browserOverCli')).toMatchObject({ status: 'not measured', note: expect.stringMatching(/browser not run/) });
   });
 });
 

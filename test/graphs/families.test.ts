@@ -123,6 +123,16 @@ describe('graph families (specific shapes)', () => {
     expect(make('er', 12, 3, { meanDegree: 9 }).size).toBe(54);
   });
 
+  it('er: params.edgeProbability gives round(p · n(n-1)/2) edges, so degree grows with n', () => {
+    // 0.3 · 48·47/2 = 338.4 -> 338 edges, mean degree 2·338/48 ≈ 14.1; at 8 nodes 0.3 · 28 = 8.4 -> 8, but the spanning tree needs 7.
+    expect(make('er', 48, 2, { edgeProbability: 0.3 }).size).toBe(338);
+    expect(make('er', 8, 2, { edgeProbability: 0.3 }).size).toBe(8);
+    expect(make('er', 8, 2, { edgeProbability: 0 }).size).toBe(7);
+    expect(make('er', 8, 2, { edgeProbability: 1 }).size).toBe(28);
+    expect(() => make('er', 8, 2, { edgeProbability: 1.5 })).toThrow(/edgeProbability must be in 0..1, got 1.5/);
+    expect(() => make('er', 8, 2, { edgeProbability: 0.2, meanDegree: 3 })).toThrow(/not both/);
+  });
+
   it('geometric: every pair within the radius is joined; mean degree near 4', () => {
     let degreeSum = 0;
     let nodeSum = 0;

@@ -12,12 +12,13 @@ export async function commandBench(args: string[]): Promise<number> {
     quiet: { type: 'boolean' },
     presets: { type: 'string' },
     'skip-presets': { type: 'boolean' },
+    'skip-browser': { type: 'boolean' },
     'long-steps': { type: 'string' },
     seconds: { type: 'string' },
     workers: { type: 'string' },
     'preset-timeout': { type: 'string' },
   });
-  if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"; usage: farfield bench [--quick] [--json] [--presets a,b | --skip-presets] [--long-steps N]`);
+  if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"; usage: farfield bench [--quick] [--json] [--presets a,b | --skip-presets] [--skip-browser] [--long-steps N]`);
   // Loaded on demand, so other commands (and the `run` children the bench times) never load the bench code.
   const { defaultOptions, runBench } = await import('../../../bench/run-bench.ts');
   const { renderReport } = await import('../../../bench/report.ts');
@@ -35,6 +36,7 @@ export async function commandBench(args: string[]): Promise<number> {
     options.skipPresets = false;
   }
   if (values['skip-presets']) options.skipPresets = true;
+  if (values['skip-browser']) options.browser = false;
   options.longSteps = intFlag('long-steps', values['long-steps'], 10, 1_000_000) ?? options.longSteps;
   const seconds = intFlag('seconds', values.seconds, 1, 3600);
   if (seconds !== undefined) options.seconds = seconds;
@@ -54,7 +56,7 @@ export async function commandBench(args: string[]): Promise<number> {
   };
   options.stopPresets = stop.signal;
   options.onPhase = (phase) => {
-    if (phase !== 'presets') return;
+    if ((phase !== 'presets' && phase !== 'browser') || process.listeners('SIGINT').includes(interrupt)) return;
     process.on('SIGINT', interrupt);
     process.on('SIGTERM', interrupt);
   };
