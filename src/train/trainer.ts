@@ -12,6 +12,7 @@ import { makeBatch, type FeatureTransforms } from './batch.ts';
 import { uploadBatch } from './tensors.ts';
 import { maskedLoss } from './loss.ts';
 import { evaluateSet } from './evaluate.ts';
+import { FusedAdam, globalNorm } from './adam.ts';
 
 export interface TrainProgress {
   step: number;
@@ -55,7 +56,8 @@ export function train(args: TrainArgs): TrainOutcome {
   const { steps: totalSteps, batchGraphs, learningRate, clipNorm, loss: lossKind, validateEvery } = budget;
   const order = rng.fork('batch-order');
   const stepRng = rng.fork('step-count');
-  const optimizer = tf.train.adam(learningRate);
+  // Bit-identical to tf.train.adam(learningRate) with the same clipping, in far fewer kernel launches (./adam.ts).
+  const optimizer = new FusedAdam(learningRate);
   const variables = [...network.params.vars.values()];
   const lossEvery = Math.max(1, Math.floor(totalSteps / 100));
   const lossCurve: number[] = [];
@@ -96,15 +98,11 @@ export function train(args: TrainArgs): TrainOutcome {
             });
             return maskedLoss(prediction, tensors.target, tensors.mask, lossKind);
           }, variables);
-          const names = Object.keys(grads);
-          const squares = names.map((n) => tf.sum(tf.square(grads[n]!)));
-          const norm = tf.sqrt(tf.addN(squares));
-          const normValue = norm.dataSync()[0]!;
+          // Variables the loss does not reach get no gradient (tfjs leaves them out) and no update.
+          const updates = variables.filter((v) => grads[v.name] != null).map((variable) => ({ variable, grad: grads[variable.name]! }));
+          const normValue = globalNorm(updates.map((u) => u.grad));
           const scale = Number.isFinite(normValue) && normValue > clipNorm ? clipNorm / normValue : 1;
-          if (Number.isFinite(normValue) && Number.isFinite(value.dataSync()[0]!)) {
-            const clipped = names.map((name) => ({ name, tensor: scale === 1 ? grads[name]! : tf.mul(grads[name]!, scale) }));
-            optimizer.applyGradients(clipped);
-          }
+          if (Number.isFinite(normValue) && Number.isFinite(value.dataSync()[0]!)) optimizer.apply(updates, scale);
           return { loss: value.dataSync()[0]!, norm: normValue };
         });
         lossValue = result.loss;

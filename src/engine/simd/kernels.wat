@@ -12,6 +12,8 @@
 ;;                float32 values rounded to float32 equals the float32 sum).
 ;;   segment_extreme   comparisons only; ties keep the lowest edge, a NaN wins.
 ;;   copy_block   a strided copy of 4-byte values (concat and split).
+;;   adam_step    tfjs's Adam update, op for op in float32 (see src/train/adam.ts).
+;;   sum_squares  ((0 + x0·x0) + x1·x1) + … in order, as Sum(Square(x)) does.
 ;;   col_sum      out[c] = ((0 + x[0,c]) + x[1,c]) + … in row order, the order of
 ;;                the backend's Sum after it transposes the reduced axes inward.
 ;; Pointers are byte offsets into the shared memory; sizes are element counts.
@@ -432,4 +434,77 @@
         (f32.store (i32.add (local.get $out) (i32.shl (local.get $c) (i32.const 2))) (local.get $accs))
         (local.set $c (i32.add (local.get $c) (i32.const 1)))
         (br $t_loop))))
+
+  ;; One Adam step for n values, each float32 op in the order tfjs's Adam applies it:
+  ;;   g  = gRaw·scale
+  ;;   m' = m·b1 + g·c1            v' = v·b2 + (g·g)·c2
+  ;;   value' = ((m'/o1) / (sqrt(v'/o2) + eps))·nlr + value
+  ;; writing value', m', v' to fresh outputs (inputs are not modified).
+  (func (export "adam_step")
+    (param $value i32) (param $grad i32) (param $m i32) (param $v i32)
+    (param $outValue i32) (param $outM i32) (param $outV i32) (param $n i32)
+    (param $scale f32) (param $b1 f32) (param $c1 f32) (param $b2 f32) (param $c2 f32)
+    (param $o1 f32) (param $o2 f32) (param $eps f32) (param $nlr f32)
+    (local $i i32) (local $n4 i32) (local $off i32)
+    (local $g v128) (local $m2 v128) (local $v2 v128)
+    (local $gs f32) (local $ms f32) (local $vs f32)
+    (local.set $n4 (i32.and (local.get $n) (i32.const -4)))
+    (block $done
+      (loop $l
+        (br_if $done (i32.ge_u (local.get $i) (local.get $n4)))
+        (local.set $off (i32.shl (local.get $i) (i32.const 2)))
+        (local.set $g (f32x4.mul (v128.load (i32.add (local.get $grad) (local.get $off))) (f32x4.splat (local.get $scale))))
+        (local.set $m2 (f32x4.add
+          (f32x4.mul (v128.load (i32.add (local.get $m) (local.get $off))) (f32x4.splat (local.get $b1)))
+          (f32x4.mul (local.get $g) (f32x4.splat (local.get $c1)))))
+        (local.set $v2 (f32x4.add
+          (f32x4.mul (v128.load (i32.add (local.get $v) (local.get $off))) (f32x4.splat (local.get $b2)))
+          (f32x4.mul (f32x4.mul (local.get $g) (local.get $g)) (f32x4.splat (local.get $c2)))))
+        (v128.store (i32.add (local.get $outM) (local.get $off)) (local.get $m2))
+        (v128.store (i32.add (local.get $outV) (local.get $off)) (local.get $v2))
+        (v128.store (i32.add (local.get $outValue) (local.get $off))
+          (f32x4.add
+            (f32x4.mul
+              (f32x4.div
+                (f32x4.div (local.get $m2) (f32x4.splat (local.get $o1)))
+                (f32x4.add (f32x4.sqrt (f32x4.div (local.get $v2) (f32x4.splat (local.get $o2)))) (f32x4.splat (local.get $eps))))
+              (f32x4.splat (local.get $nlr)))
+            (v128.load (i32.add (local.get $value) (local.get $off)))))
+        (local.set $i (i32.add (local.get $i) (i32.const 4)))
+        (br $l)))
+    (block $t_done
+      (loop $t
+        (br_if $t_done (i32.ge_u (local.get $i) (local.get $n)))
+        (local.set $off (i32.shl (local.get $i) (i32.const 2)))
+        (local.set $gs (f32.mul (f32.load (i32.add (local.get $grad) (local.get $off))) (local.get $scale)))
+        (local.set $ms (f32.add
+          (f32.mul (f32.load (i32.add (local.get $m) (local.get $off))) (local.get $b1))
+          (f32.mul (local.get $gs) (local.get $c1))))
+        (local.set $vs (f32.add
+          (f32.mul (f32.load (i32.add (local.get $v) (local.get $off))) (local.get $b2))
+          (f32.mul (f32.mul (local.get $gs) (local.get $gs)) (local.get $c2))))
+        (f32.store (i32.add (local.get $outM) (local.get $off)) (local.get $ms))
+        (f32.store (i32.add (local.get $outV) (local.get $off)) (local.get $vs))
+        (f32.store (i32.add (local.get $outValue) (local.get $off))
+          (f32.add
+            (f32.mul
+              (f32.div
+                (f32.div (local.get $ms) (local.get $o1))
+                (f32.add (f32.sqrt (f32.div (local.get $vs) (local.get $o2))) (local.get $eps)))
+              (local.get $nlr))
+            (f32.load (i32.add (local.get $value) (local.get $off)))))
+        (local.set $i (i32.add (local.get $i) (i32.const 1)))
+        (br $t))))
+
+  ;; Sum of x[i]·x[i] over n values, in order, from 0.
+  (func (export "sum_squares") (param $x i32) (param $n i32) (result f32)
+    (local $acc f32) (local $i i32) (local $v f32)
+    (block $done
+      (loop $l
+        (br_if $done (i32.ge_u (local.get $i) (local.get $n)))
+        (local.set $v (f32.load (i32.add (local.get $x) (i32.shl (local.get $i) (i32.const 2)))))
+        (local.set $acc (f32.add (local.get $acc) (f32.mul (local.get $v) (local.get $v))))
+        (local.set $i (i32.add (local.get $i) (i32.const 1)))
+        (br $l)))
+    (local.get $acc))
 )

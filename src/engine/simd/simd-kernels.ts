@@ -26,6 +26,24 @@ interface Exports {
   segment_extreme(x: number, ids: number, vals: number, arg: number, E: number, C: number, S: number, isMax: number): void;
   copy_block(src: number, dst: number, rows: number, width: number, srcStride: number, dstStride: number): void;
   col_sum(x: number, out: number, rows: number, cols: number): void;
+  adam_step(
+    value: number, grad: number, m: number, v: number, outValue: number, outM: number, outV: number, n: number,
+    scale: number, b1: number, c1: number, b2: number, c2: number, o1: number, o2: number, eps: number, nlr: number,
+  ): void;
+  sum_squares(x: number, n: number): number;
+}
+
+/** Float32 constants of one Adam step (see src/train/adam.ts). */
+export interface AdamConstants {
+  scale: number;
+  b1: number;
+  c1: number;
+  b2: number;
+  c2: number;
+  o1: number;
+  o2: number;
+  eps: number;
+  nlr: number;
 }
 
 export interface SimdKernels {
@@ -45,6 +63,10 @@ export interface SimdKernels {
   copyBlock(src: TensorInfo, srcStart: number, dst: TensorInfo, dstStart: number, rows: number, width: number, srcStride: number, dstStride: number): void;
   /** out[c] = sum of x[r, c] over rows in order, for x viewed as [rows, cols]. */
   colSum(x: TensorInfo, out: TensorInfo, rows: number, cols: number): void;
+  /** One Adam step over value/grad/m/v (same size) into three fresh outputs. */
+  adamStep(value: TensorInfo, grad: TensorInfo, m: TensorInfo, v: TensorInfo, outs: [TensorInfo, TensorInfo, TensorInfo], k: AdamConstants): void;
+  /** Sum of squares of all n values of x, in order, in float32. */
+  sumSquares(x: TensorInfo, n: number): number;
 }
 
 /** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
@@ -108,6 +130,15 @@ function load(backend: BackendWasm): SimdKernels | null {
     },
     copyBlock(src, srcStart, dst, dstStart, rows, width, srcStride, dstStride) {
       exports.copy_block(offset(src) + 4 * srcStart, offset(dst) + 4 * dstStart, rows, width, srcStride, dstStride);
+    },
+    adamStep(value, grad, m, v, [outValue, outM, outV], k) {
+      exports.adam_step(
+        offset(value), offset(grad), offset(m), offset(v), offset(outValue), offset(outM), offset(outV), value.shape.reduce((a, b) => a * b, 1),
+        k.scale, k.b1, k.c1, k.b2, k.c2, k.o1, k.o2, k.eps, k.nlr,
+      );
+    },
+    sumSquares(x, n) {
+      return exports.sum_squares(offset(x), n);
     },
     colSum(x, out, rows, cols) {
       exports.col_sum(offset(x), offset(out), rows, cols);
