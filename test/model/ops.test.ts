@@ -162,13 +162,13 @@ describe('engine/backend', () => {
   it('initialises each backend idempotently and reports threads', async () => {
     const a = await initBackend('wasm');
     const b = await initBackend('wasm');
-    expect(a).toEqual({ backend: 'wasm', threads: 1 }); // tfjs disables WASM threads in Node
+    expect(a).toEqual({ backend: 'wasm', threads: 1, simd: true }); // tfjs disables WASM threads in Node; Node 20 has WASM SIMD
     expect(b).toEqual(a);
     expect(threadsInUse()).toBe(1);
     expect(tf.getBackend()).toBe('wasm');
     expect(isWasmMatMulPatched()).toBe(true);
     const c = await initBackend('cpu');
-    expect(c).toEqual({ backend: 'cpu', threads: 1 });
+    expect(c).toEqual({ backend: 'cpu', threads: 1, simd: false });
     expect(tf.getBackend()).toBe('cpu');
     // Standard gradients are registered (tfjs-core alone has none).
     expect(tf.getGradient('Sum')).toBeDefined();
