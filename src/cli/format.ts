@@ -41,18 +41,19 @@ export function renderResults(doc: ResultsDocument): string {
   lines.push(`Metric: ${METRIC_WORDS[comparison.metric] ?? comparison.metric}; mean over seeds [95% bootstrap interval]`);
   lines.push('');
   const arms = spec.arms.map((a) => a.name);
-  const header = ['size', 'depth', ...arms, 'gap ' + arms.join('/')];
+  const header = ['size', 'depth', 'degree', ...arms, 'gap ' + arms.join('/')];
   const rows: string[][] = [header];
   for (const rung of comparison.rungs) {
     rows.push([
       rungLabel(rung) + (rung.inTrainingRange ? '*' : ''),
       num(rung.depthMean, 2),
+      num(rung.meanDegree, 2),
       ...rung.arms.map((a) => (a.summary.n ? `${num(a.summary.mean)} [${num(a.summary.meanLow)}, ${num(a.summary.meanHigh)}]${a.excluded ? ` (${a.excluded} excl.)` : ''}` : 'no runs')),
       rung.arms.map((a) => num(a.gap, 2)).join('/'),
     ]);
   }
   lines.push(renderTable(rows));
-  lines.push('* inside the training size range. depth: mean rounds the exact algorithm needs. gap: error ÷ in-distribution error.');
+  lines.push('* inside the training size range. depth: mean rounds the exact algorithm needs. degree: mean degree. gap: error ÷ in-distribution error.');
   lines.push('');
   if (spec.arms.length > 2) {
     lines.push('Ranking per size (lowest error first; intervals overlap = not separated):');
