@@ -62,7 +62,7 @@ describe('farfield run', () => {
 
   it('prints a table with verdicts and the too-few-seeds caveat', () => {
     const text = farfield('run', tiny, '--quiet', '--workers', '2');
-    expect(text.stdout).toMatch(/size\s+depth\s+max\s+sum/);
+    expect(text.stdout).toMatch(/size\s+depth\s+degree\s+max\s+sum/);
     expect(text.stdout).toMatch(/too few seeds to tell/);
     expect(text.stdout).toMatch(/smallest possible two-sided signed-rank p is 0\.5; run at least 6 seeds/);
     expect(text.stdout).toContain(`fingerprint ${doc.fingerprint}`);
