@@ -40,6 +40,12 @@ export interface ForwardOptions {
   trace?: boolean;
   /** For until-stable: stop when max |Δh| < tolerance · (1 + max |h|). */
   stopTolerance?: number;
+  /**
+   * Forward-only use (no gradient): free each step's intermediates as soon as
+   * the next state exists, so memory does not grow with the step count. The
+   * same ops run, so results are unchanged.
+   */
+  releaseSteps?: boolean;
 }
 
 export interface ForwardResult {
@@ -197,20 +203,25 @@ export class MessagePassingNetwork {
     const trace: tf.Tensor2D[] = [];
     let stepsRun = 0;
     const joined = this.joinedWeights();
-    for (let t = 0; t < options.steps; t++) {
-      const m = this.message(h, edgeTerm, inputs, joined.message);
+    const step = (state: tf.Tensor2D): tf.Tensor2D => {
+      const m = this.message(state, edgeTerm, inputs, joined.message);
       const a = this.aggregator.aggregate({ messages: m, dst: inputs.dst, nodes: inputs.nodes, hasIncoming, temperature: this.options.aggregatorTemperature });
-      const next = this.update(h, a, encoded, hasIncoming, joined.update);
+      return this.update(state, a, encoded, hasIncoming, joined.update);
+    };
+    for (let t = 0; t < options.steps; t++) {
+      const previous = h;
+      const next = options.releaseSteps ? tf.tidy(() => step(previous)) : step(previous);
       stepsRun++;
       if (options.trace) trace.push(this.decode(next));
+      let stable = false;
       if (options.stopTolerance !== undefined) {
-        const change = tf.max(tf.abs(tf.sub(next, h))).dataSync()[0]!;
-        const size = tf.max(tf.abs(next)).dataSync()[0]!;
-        h = next;
-        if (change < options.stopTolerance * (1 + size)) break;
-      } else {
-        h = next;
+        const [change, size] = tf.tidy(() => [tf.max(tf.abs(tf.sub(next, previous))).dataSync()[0]!, tf.max(tf.abs(next)).dataSync()[0]!]);
+        stable = change! < options.stopTolerance * (1 + size!);
       }
+      // The previous state is no longer needed (the trace keeps decoded copies, not states).
+      if (options.releaseSteps && previous !== encoded) previous.dispose();
+      h = next;
+      if (stable) break;
     }
     return { prediction: this.decode(h), stepsRun, trace };
   }

@@ -43,6 +43,7 @@ export function predict(network: MessagePassingNetwork, instances: readonly Task
           network.forward(tensors, {
             steps,
             stopTolerance: rule.rule === 'until-stable' && options.steps === undefined ? rule.tolerance : undefined,
+            releaseSteps: true,
           }).prediction,
       );
       values = prediction.dataSync() as Float32Array;
