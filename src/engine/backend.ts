@@ -10,7 +10,8 @@
  * explicitly and take the fast path. src/engine/kernels-identity.ts makes the
  * WASM Identity (used by the engine to save tensors for backprop) share the
  * buffer instead of copying it. src/engine/kernels-layout.ts moves Concat,
- * SplitV and bias-gradient sums onto Farfield's SIMD module.
+ * SplitV and bias-gradient sums onto Farfield's SIMD module, and
+ * src/engine/kernels-broadcast.ts runs broadcasting + − × ÷ and Equal as loops.
  *
  * Import tf from '@tensorflow/tfjs-core' everywhere in engine code (never the
  * umbrella '@tensorflow/tfjs', which would pull in WebGL).
@@ -27,6 +28,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import { registerGraphKernels } from './kernels-graph.ts';
 import { patchWasmIdentity } from './kernels-identity.ts';
+import { patchWasmBroadcast } from './kernels-broadcast.ts';
 import { patchWasmLayout } from './kernels-layout.ts';
 import { patchWasmMatMul } from './kernels-matmul.ts';
 import { simdKernels } from './simd/simd-kernels.ts';
@@ -157,6 +159,7 @@ async function doInit(
     patchWasmMatMul();
     patchWasmIdentity();
     patchWasmLayout();
+    patchWasmBroadcast();
   }
 
   const before = isNode() ? nodeErrorListeners() : null;

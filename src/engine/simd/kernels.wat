@@ -14,6 +14,7 @@
 ;;   copy_block   a strided copy of 4-byte values (concat and split).
 ;;   adam_step    tfjs's Adam update, op for op in float32 (see src/train/adam.ts).
 ;;   sum_squares  ((0 + x0·x0) + x1·x1) + … in order, as Sum(Square(x)) does.
+;;   equal3       a == b (1 byte per result) over a broadcast of up to 3 axes; exact.
 ;;   col_sum      out[c] = ((0 + x[0,c]) + x[1,c]) + … in row order, the order of
 ;;                the backend's Sum after it transposes the reduced axes inward.
 ;; Pointers are byte offsets into the shared memory; sizes are element counts.
@@ -507,4 +508,47 @@
         (local.set $i (i32.add (local.get $i) (i32.const 1)))
         (br $l)))
     (local.get $acc))
+
+  ;; out[i0,i1,i2] = a[i0·as0 + i1·as1 + i2·as2] == b[…] ? 1 : 0 (float32 in, one byte out;
+  ;; strides in elements, 0 along broadcast axes).
+  (func (export "equal3") (param $a i32) (param $b i32) (param $out i32)
+    (param $d0 i32) (param $d1 i32) (param $d2 i32)
+    (param $as0 i32) (param $as1 i32) (param $as2 i32) (param $bs0 i32) (param $bs1 i32) (param $bs2 i32)
+    (local $i0 i32) (local $i1 i32) (local $i2 i32) (local $pa0 i32) (local $pb0 i32) (local $pa1 i32) (local $pb1 i32)
+    (local $pa i32) (local $pb i32) (local $po i32)
+    (local.set $as0 (i32.shl (local.get $as0) (i32.const 2))) (local.set $as1 (i32.shl (local.get $as1) (i32.const 2)))
+    (local.set $as2 (i32.shl (local.get $as2) (i32.const 2))) (local.set $bs0 (i32.shl (local.get $bs0) (i32.const 2)))
+    (local.set $bs1 (i32.shl (local.get $bs1) (i32.const 2))) (local.set $bs2 (i32.shl (local.get $bs2) (i32.const 2)))
+    (local.set $po (local.get $out))
+    (local.set $pa0 (local.get $a))
+    (local.set $pb0 (local.get $b))
+    (block $d0_done
+      (loop $l0
+        (br_if $d0_done (i32.ge_u (local.get $i0) (local.get $d0)))
+        (local.set $pa1 (local.get $pa0))
+        (local.set $pb1 (local.get $pb0))
+        (local.set $i1 (i32.const 0))
+        (block $d1_done
+          (loop $l1
+            (br_if $d1_done (i32.ge_u (local.get $i1) (local.get $d1)))
+            (local.set $pa (local.get $pa1))
+            (local.set $pb (local.get $pb1))
+            (local.set $i2 (i32.const 0))
+            (block $d2_done
+              (loop $l2
+                (br_if $d2_done (i32.ge_u (local.get $i2) (local.get $d2)))
+                (i32.store8 (local.get $po) (f32.eq (f32.load (local.get $pa)) (f32.load (local.get $pb))))
+                (local.set $po (i32.add (local.get $po) (i32.const 1)))
+                (local.set $pa (i32.add (local.get $pa) (local.get $as2)))
+                (local.set $pb (i32.add (local.get $pb) (local.get $bs2)))
+                (local.set $i2 (i32.add (local.get $i2) (i32.const 1)))
+                (br $l2)))
+            (local.set $pa1 (i32.add (local.get $pa1) (local.get $as1)))
+            (local.set $pb1 (i32.add (local.get $pb1) (local.get $bs1)))
+            (local.set $i1 (i32.add (local.get $i1) (i32.const 1)))
+            (br $l1)))
+        (local.set $pa0 (i32.add (local.get $pa0) (local.get $as0)))
+        (local.set $pb0 (i32.add (local.get $pb0) (local.get $bs0)))
+        (local.set $i0 (i32.add (local.get $i0) (i32.const 1)))
+        (br $l0))))
 )

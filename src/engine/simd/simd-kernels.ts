@@ -31,6 +31,7 @@ interface Exports {
     scale: number, b1: number, c1: number, b2: number, c2: number, o1: number, o2: number, eps: number, nlr: number,
   ): void;
   sum_squares(x: number, n: number): number;
+  equal3(a: number, b: number, out: number, d0: number, d1: number, d2: number, as0: number, as1: number, as2: number, bs0: number, bs1: number, bs2: number): void;
 }
 
 /** Float32 constants of one Adam step (see src/train/adam.ts). */
@@ -67,6 +68,8 @@ export interface SimdKernels {
   adamStep(value: TensorInfo, grad: TensorInfo, m: TensorInfo, v: TensorInfo, outs: [TensorInfo, TensorInfo, TensorInfo], k: AdamConstants): void;
   /** Sum of squares of all n values of x, in order, in float32. */
   sumSquares(x: TensorInfo, n: number): number;
+  /** out = (a == b) as bytes over a broadcast of 3 axes (shape, and each input's element strides, 0 where it broadcasts). */
+  equal3(a: TensorInfo, b: TensorInfo, out: TensorInfo, shape: [number, number, number], aStrides: [number, number, number], bStrides: [number, number, number]): void;
 }
 
 /** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
@@ -136,6 +139,9 @@ function load(backend: BackendWasm): SimdKernels | null {
         offset(value), offset(grad), offset(m), offset(v), offset(outValue), offset(outM), offset(outV), value.shape.reduce((a, b) => a * b, 1),
         k.scale, k.b1, k.c1, k.b2, k.c2, k.o1, k.o2, k.eps, k.nlr,
       );
+    },
+    equal3(a, b, out, [d0, d1, d2], [as0, as1, as2], [bs0, bs1, bs2]) {
+      exports.equal3(offset(a), offset(b), offset(out), d0, d1, d2, as0, as1, as2, bs0, bs1, bs2);
     },
     sumSquares(x, n) {
       return exports.sum_squares(offset(x), n);
