@@ -15,12 +15,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import { simdKernels } from './simd/simd-kernels.ts';
 
-const PATCHED = Symbol.for('farfield.broadcastPatched');
-interface Patched {
-  [PATCHED]?: tf.KernelConfig;
-}
-
-const OPS = ['Equal'];
+import { kernelPatch } from './kernel-patch.ts';
 
 function sameShape(a: number[], b: number[]): boolean {
   return a.length === b.length && a.every((d, i) => d === b[i]);
@@ -106,7 +101,7 @@ export function equalLoop(out: Uint8Array, a: Float32Array, b: Float32Array, pla
 }
 
 function wrap(original: tf.KernelConfig): tf.KernelFunc {
-  const f: tf.KernelFunc = (args) => {
+  return (args) => {
     const { a, b } = args.inputs as { a: tf.TensorInfo; b: tf.TensorInfo };
     if (a.dtype !== 'float32' || b.dtype !== 'float32' || sameShape(a.shape, b.shape)) return original.kernelFunc(args);
     const full = broadcastPlan(a.shape, b.shape);
@@ -124,27 +119,12 @@ function wrap(original: tf.KernelConfig): tf.KernelFunc {
     }
     return out;
   };
-  (f as Patched)[PATCHED] = original;
-  return f;
 }
+
+const equal = kernelPatch('broadcast', ['Equal'], wrap);
 
 /** Re-register the WASM Equal kernel with the broadcast path. Idempotent. */
-export function patchWasmBroadcast(): void {
-  for (const op of OPS) {
-    const current = tf.getKernel(op, 'wasm');
-    if (current == null || (current.kernelFunc as Patched)[PATCHED] != null) continue;
-    tf.unregisterKernel(op, 'wasm');
-    tf.registerKernel({ ...current, kernelFunc: wrap(current) });
-  }
-}
+export const patchWasmBroadcast = (): void => equal.patch();
 
-/** Restore the stock kernels (tests compare both). */
-export function unpatchWasmBroadcast(): void {
-  for (const op of OPS) {
-    const current = tf.getKernel(op, 'wasm');
-    const original = current == null ? undefined : (current.kernelFunc as Patched)[PATCHED];
-    if (original == null) continue;
-    tf.unregisterKernel(op, 'wasm');
-    tf.registerKernel(original);
-  }
-}
+/** Restore the stock kernel (tests compare both). */
+export const unpatchWasmBroadcast = (): void => equal.unpatch();

@@ -12,36 +12,22 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 
-const PATCHED = Symbol.for('farfield.identityPatched');
-interface Patched {
-  [PATCHED]?: tf.KernelConfig;
-}
+import { kernelPatch } from './kernel-patch.ts';
 
 function wrap(original: tf.KernelConfig): tf.KernelFunc {
-  const f: tf.KernelFunc = (args) => {
+  return (args) => {
     const x = args.inputs['x'];
     if (x == null || x.dtype === 'string') return original.kernelFunc(args);
     // Registered only for 'wasm'.
     (args.backend as BackendWasm).incRef(x.dataId);
     return { dataId: x.dataId, shape: [...x.shape], dtype: x.dtype };
   };
-  (f as Patched)[PATCHED] = original;
-  return f;
 }
+
+const identity = kernelPatch('identity', ['Identity'], wrap);
 
 /** Re-register the WASM Identity kernel as a reference-counted share. Idempotent. */
-export function patchWasmIdentity(): void {
-  const current = tf.getKernel('Identity', 'wasm');
-  if (current == null || (current.kernelFunc as Patched)[PATCHED] != null) return;
-  tf.unregisterKernel('Identity', 'wasm');
-  tf.registerKernel({ ...current, kernelFunc: wrap(current) });
-}
+export const patchWasmIdentity = (): void => identity.patch();
 
 /** Restore the stock (copying) WASM Identity kernel. */
-export function unpatchWasmIdentity(): void {
-  const current = tf.getKernel('Identity', 'wasm');
-  const original = current == null ? undefined : (current.kernelFunc as Patched)[PATCHED];
-  if (original == null) return;
-  tf.unregisterKernel('Identity', 'wasm');
-  tf.registerKernel(original);
-}
+export const unpatchWasmIdentity = (): void => identity.unpatch();

@@ -14,10 +14,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import { simdKernels } from './simd/simd-kernels.ts';
 
-const PATCHED = Symbol.for('farfield.layoutPatched');
-interface Patched {
-  [PATCHED]?: tf.KernelConfig;
-}
+import { kernelPatch } from './kernel-patch.ts';
 
 const size = (shape: number[]) => shape.reduce((a, b) => a * b, 1);
 const fourByte = (dtype: string) => dtype === 'float32' || dtype === 'int32';
@@ -99,15 +96,7 @@ function sum(original: tf.KernelConfig): tf.KernelFunc {
 }
 
 const PATCHES: Record<string, (original: tf.KernelConfig) => tf.KernelFunc> = { Concat: concat, SplitV: splitV, Sum: sum };
+const layout = kernelPatch('layout', Object.keys(PATCHES), (stock, name) => PATCHES[name]!(stock));
 
 /** Re-register the WASM Concat, SplitV and Sum kernels with the SIMD paths. Idempotent. */
-export function patchWasmLayout(): void {
-  for (const [kernelName, make] of Object.entries(PATCHES)) {
-    const current = tf.getKernel(kernelName, 'wasm');
-    if (current == null || (current.kernelFunc as Patched)[PATCHED] != null) continue;
-    const kernelFunc = make(current);
-    (kernelFunc as Patched)[PATCHED] = current;
-    tf.unregisterKernel(kernelName, 'wasm');
-    tf.registerKernel({ ...current, kernelFunc });
-  }
-}
+export const patchWasmLayout = (): void => layout.patch();

@@ -31,10 +31,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import { simdKernels, type SimdKernels } from './simd/simd-kernels.ts';
 
-const PATCHED = Symbol.for('farfield.matmulPatched');
-interface Patched {
-  [PATCHED]?: tf.KernelConfig;
-}
+import { kernelPatch } from './kernel-patch.ts';
 
 /** Swap the last two axes of `x` with the backend's own Transpose kernel. */
 function transposeLast2(x: tf.TensorInfo, backend: BackendWasm): tf.TensorInfo {
@@ -105,7 +102,7 @@ function simdProduct(
 }
 
 function wrap(original: tf.KernelConfig): tf.KernelFunc {
-  const f: tf.KernelFunc = (args) => {
+  return (args) => {
     const attrs = args.attrs ?? {};
     const transposeA = attrs['transposeA'] === true;
     const transposeB = attrs['transposeB'] === true;
@@ -134,36 +131,15 @@ function wrap(original: tf.KernelConfig): tf.KernelFunc {
       for (const t of temps) backend.disposeData(t.dataId);
     }
   };
-  (f as Patched)[PATCHED] = original;
-  return f;
 }
 
-const NAMES = ['BatchMatMul', '_FusedMatMul'];
+const matmul = kernelPatch('matmul', ['BatchMatMul', '_FusedMatMul'], wrap);
 
-/** Re-register the WASM matmul kernels with the transpose-first path. Idempotent. */
-export function patchWasmMatMul(): void {
-  for (const kernelName of NAMES) {
-    const current = tf.getKernel(kernelName, 'wasm');
-    if (current == null) continue; // the WASM backend module is not loaded yet
-    if ((current.kernelFunc as Patched)[PATCHED] != null) continue;
-    tf.unregisterKernel(kernelName, 'wasm');
-    tf.registerKernel({ ...current, kernelFunc: wrap(current) });
-  }
-}
+/** Re-register the WASM matmul kernels with the SIMD / transpose-first paths. Idempotent. */
+export const patchWasmMatMul = (): void => matmul.patch();
 
 /** Restore the stock WASM matmul kernels (benchmarks and tests compare both). */
-export function unpatchWasmMatMul(): void {
-  for (const kernelName of NAMES) {
-    const current = tf.getKernel(kernelName, 'wasm');
-    const original = current == null ? undefined : (current.kernelFunc as Patched)[PATCHED];
-    if (original == null) continue;
-    tf.unregisterKernel(kernelName, 'wasm');
-    tf.registerKernel(original);
-  }
-}
+export const unpatchWasmMatMul = (): void => matmul.unpatch();
 
-/** True if the WASM BatchMatMul kernel is the transpose-first one. */
-export function isWasmMatMulPatched(): boolean {
-  const current = tf.getKernel('BatchMatMul', 'wasm');
-  return current != null && (current.kernelFunc as Patched)[PATCHED] != null;
-}
+/** True if the WASM matmul kernels are the patched ones. */
+export const isWasmMatMulPatched = (): boolean => matmul.isPatched();
