@@ -23,7 +23,8 @@
 
   ;; One C element the plain way (edge rows and columns of a product).
   ;; A(i, k) sits at a + 4·(i·rs + k·ks); B is [K, N] row-major.
-  ;; The sum starts from bias[j] when $bias >= 0, else from 0 (as the backend's matmul does).
+  ;; The sum starts from bias[j] when $bias is not 0 (no tensor lives at address 0), else from 0,
+  ;; as the backend's matmul does. (A sign test would misread offsets past 2 GiB.)
   (func $dot (param $a i32) (param $b i32) (param $K i32) (param $rs i32) (param $ks i32) (param $N i32) (param $i i32) (param $j i32) (param $bias i32) (result f32)
     (local $acc f32) (local $pa i32) (local $pb i32) (local $k i32) (local $sa i32) (local $sb i32)
     (local.set $pa (i32.add (local.get $a) (i32.shl (i32.mul (local.get $i) (local.get $rs)) (i32.const 2))))
@@ -31,7 +32,7 @@
     (local.set $sa (i32.shl (local.get $ks) (i32.const 2)))
     (local.set $sb (i32.shl (local.get $N) (i32.const 2)))
     (local.set $acc (f32.const 0))
-    (if (i32.ge_s (local.get $bias) (i32.const 0))
+    (if (local.get $bias)
       (then (local.set $acc (f32.load (i32.add (local.get $bias) (i32.shl (local.get $j) (i32.const 2)))))))
     (block $done
       (loop $k_loop
@@ -45,10 +46,10 @@
 
   ;; C[M,N] = Aᵀ·B for A [K,M] and B [K,N], all row-major float32.
   (func (export "mm_tn") (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32)
-    (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (i32.const 1) (local.get $M) (i32.const -1) (i32.const 0)))
+    (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (i32.const 1) (local.get $M) (i32.const 0) (i32.const 0)))
 
   ;; C[M,N] = act(bias + A·B) for A [M,K] and B [K,N], all row-major float32;
-  ;; bias [N] at $bias, or none when $bias < 0; $relu = 1 clamps at 0 the way
+  ;; bias [N] at $bias, or none when $bias is 0; $relu = 1 clamps at 0 the way
   ;; the backend's fused relu does (max(0, x) with a NaN going to 0).
   (func (export "mm_nn") (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32) (param $bias i32) (param $relu i32)
     (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (local.get $K) (i32.const 1) (local.get $bias) (local.get $relu)))
@@ -80,7 +81,7 @@
             (br_if $j_done (i32.ge_u (local.get $j) (local.get $N8)))
             (local.set $bias0 (v128.const f32x4 0 0 0 0))
             (local.set $bias1 (v128.const f32x4 0 0 0 0))
-            (if (i32.ge_s (local.get $bias) (i32.const 0))
+            (if (local.get $bias)
               (then
                 (local.set $bias0 (v128.load (i32.add (local.get $bias) (i32.shl (local.get $j) (i32.const 2)))))
                 (local.set $bias1 (v128.load offset=16 (i32.add (local.get $bias) (i32.shl (local.get $j) (i32.const 2)))))))

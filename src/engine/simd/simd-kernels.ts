@@ -120,7 +120,7 @@ function load(backend: BackendWasm): SimdKernels | null {
       exports.mm_tn(offset(a), offset(b), offset(c), K, M, N);
     },
     matMulNN(a, b, c, K, M, N, bias, relu) {
-      exports.mm_nn(offset(a), offset(b), offset(c), K, M, N, bias == null ? -1 : offset(bias), relu ? 1 : 0);
+      exports.mm_nn(offset(a), offset(b), offset(c), K, M, N, bias == null ? 0 : offset(bias), relu ? 1 : 0);
     },
     gatherPairAdd(p, src, dst, b, out, E, H) {
       exports.gather_pair_add(offset(p), offset(src), offset(dst), offset(b), offset(out), E, H);
