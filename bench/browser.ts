@@ -16,10 +16,9 @@ import { validateSpec } from '../src/experiment/check.ts';
 import { encodeSpecLink } from '../src/share/link.ts';
 import { PRESET_DIR } from './presets.ts';
 import { serveStatic } from './static-server.ts';
+import { CHROMIUM, CHROMIUM_ARGS as ARGS } from './chromium.ts';
 
 const ROOT = fileURLToPath(new URL('..', import.meta.url));
-export const CHROMIUM = '/usr/bin/chromium';
-const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'];
 
 export interface BrowserTiming {
   file: string;

@@ -13,13 +13,12 @@ import { join, resolve } from 'node:path';
 import { validateSpec } from '../../src/experiment/check.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
 import { serveStatic, type StaticServer } from '../../bench/static-server.ts';
+import { CHROMIUM, CHROMIUM_ARGS as ARGS } from '../../bench/chromium.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 // Its own build directory: sheet.test.ts may be building test-output/site at the same time.
 const SITE = join(ROOT, 'test-output', 'site-probes');
 const SHOTS = join(ROOT, 'test-output');
-const CHROMIUM = '/usr/bin/chromium';
-const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'];
 
 function build(): Promise<void> {
   return new Promise((ok, fail) => {

@@ -16,12 +16,11 @@ import { validateSpec } from '../../src/experiment/check.ts';
 import type { ExperimentSpec } from '../../src/experiment/spec.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
 import { serveStatic, type StaticServer } from '../../bench/static-server.ts';
+import { CHROMIUM, CHROMIUM_ARGS as ARGS } from '../../bench/chromium.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const SITE = join(ROOT, 'test-output', 'site');
 const SHOTS = join(ROOT, 'test-output');
-const CHROMIUM = '/usr/bin/chromium';
-const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run'];
 
 /** The quick fixture (2 arms × 2 seeds × 20 steps on tiny graphs), with a few fields changed per test so kept runs never leak between tests. */
 function quickSpec(change: { base?: number; count?: number; question?: string } = {}): ExperimentSpec {
