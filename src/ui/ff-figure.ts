@@ -26,17 +26,6 @@ export class FfFigure extends LitElement {
       .plot {
         margin-top: 0.5em;
       }
-      .plot svg {
-        width: 100%;
-        height: auto;
-        display: block;
-      }
-      figcaption {
-        margin-top: 0.35em;
-        font-size: 0.88em;
-        color: var(--muted);
-        line-height: 1.45;
-      }
     `,
   ];
 

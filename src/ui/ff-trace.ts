@@ -112,17 +112,6 @@ export class FfTrace extends LitElement {
         height: 64px;
         margin-top: 0.3em;
       }
-      .plot svg {
-        width: 100%;
-        height: auto;
-        display: block;
-      }
-      figcaption {
-        margin-top: 0.35em;
-        font-size: 0.88em;
-        color: var(--muted);
-        line-height: 1.45;
-      }
     `,
   ];
 

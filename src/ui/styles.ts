@@ -152,7 +152,7 @@ export const sectionHead = css`
   }
 `;
 
-/** The numbered figure frame (title, export buttons, body) shared by every figure of the evidence. */
+/** The numbered figure frame (title, export buttons, plot, caption) shared by every figure of the evidence. */
 export const figureFrame = css`
   :host {
     display: block;
@@ -188,5 +188,16 @@ export const figureFrame = css`
   .tools button {
     font-size: 0.78em;
     padding: 0.15em 0.55em;
+  }
+  .plot svg {
+    width: 100%;
+    height: auto;
+    display: block;
+  }
+  figcaption {
+    margin-top: 0.35em;
+    font-size: 0.88em;
+    color: var(--muted);
+    line-height: 1.45;
   }
 `;

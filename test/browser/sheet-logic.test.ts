@@ -11,18 +11,14 @@ import { buildResults } from '../../src/experiment/results.ts';
 import { planRuns } from '../../src/experiment/plan.ts';
 import type { RunResult } from '../../src/experiment/run.ts';
 import { tinySpec } from '../helpers.ts';
+import { unmeasuredResult } from '../../src/experiment/run-record.ts';
 
 const engine = { name: 'farfield', version: '0.1.0', backend: 'wasm', threads: 1, host: 'browser' } as const;
 
 /** Made-up results: arm 0 has lower error than arm 1 on every rung. */
 function fakeRuns(spec = tinySpec()): RunResult[] {
   return planRuns(spec).map((plan) => ({
-    index: plan.index,
-    arm: plan.arm,
-    armIndex: plan.armIndex,
-    seed: plan.seed,
-    seedIndex: plan.seedIndex,
-    status: 'ok',
+    ...unmeasuredResult(plan),
     stepsDone: spec.budget.steps,
     keptStep: spec.budget.steps,
     lossCurve: [3, 2, 1],

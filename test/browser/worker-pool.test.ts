@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { planRuns } from '../../src/experiment/plan.ts';
 import type { RunResult } from '../../src/experiment/run.ts';
+import { unmeasuredResult } from '../../src/experiment/run-record.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
 import { runWorkerPool, type PoolWorker } from '../../src/ui/worker-pool.ts';
 import { tinySpec } from '../helpers.ts';
@@ -14,23 +15,7 @@ import { tinySpec } from '../helpers.ts';
 type Script = (message: ToWorker, reply: (m: FromWorker) => void, die: (reason: string) => void) => void;
 
 function okResult(message: Extract<ToWorker, { type: 'run' }>): RunResult {
-  const { plan } = message;
-  return {
-    index: plan.index,
-    arm: plan.arm,
-    armIndex: plan.armIndex,
-    seed: plan.seed,
-    seedIndex: plan.seedIndex,
-    status: 'ok',
-    stepsDone: 1,
-    keptStep: 1,
-    lossCurve: [1],
-    lossEvery: 1,
-    parameters: 1,
-    inDistribution: null,
-    ladder: [],
-    seconds: 0,
-  };
+  return { ...unmeasuredResult(message.plan), stepsDone: 1, keptStep: 1, lossCurve: [1], parameters: 1 };
 }
 
 /** A fake worker that answers asynchronously, as a real one does. */
