@@ -7,18 +7,15 @@
  * CLI's numbers. Uses Debian's /usr/bin/chromium through playwright-core;
  * never downloads a browser.
  */
-import { execFile } from 'node:child_process';
 import { existsSync, mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { validateSpec } from '../src/experiment/check.ts';
 import { encodeSpecLink } from '../src/share/link.ts';
 import { PRESET_DIR } from './presets.ts';
-import { serveStatic } from './static-server.ts';
+import { buildSite, serveStatic } from './static-server.ts';
 import { CHROMIUM, CHROMIUM_ARGS as ARGS } from './chromium.ts';
 
-const ROOT = fileURLToPath(new URL('..', import.meta.url));
 
 export interface BrowserTiming {
   file: string;
@@ -36,17 +33,6 @@ export interface BrowserTiming {
   error?: string;
 }
 
-function build(outDir: string): Promise<void> {
-  return new Promise((ok, fail) => {
-    execFile(
-      process.execPath,
-      [join(ROOT, 'node_modules/vite/bin/vite.js'), 'build', '--outDir', outDir, '--emptyOutDir', '--logLevel', 'error'],
-      { cwd: ROOT, timeout: 300_000, maxBuffer: 16 * 1024 * 1024 },
-      (error, _stdout, stderr) => (error ? fail(new Error(`vite build failed: ${error.message}\n${stderr}`)) : ok()),
-    );
-  });
-}
-
 /** Run `file` (a presets/ name) in headless Chromium and time it; errors are reported in the result, not thrown. */
 export async function timePresetInBrowser(file: string, timeoutSeconds: number, log: (line: string) => void): Promise<BrowserTiming> {
   const result: BrowserTiming = { file, wall: null, setupSeconds: null, fingerprint: null, hardwareConcurrency: null, browser: null, simdKernels: null };
@@ -58,7 +44,7 @@ export async function timePresetInBrowser(file: string, timeoutSeconds: number, 
     const spec = validateSpec(JSON.parse(readFileSync(join(PRESET_DIR, file), 'utf8')));
     const fragment = await encodeSpecLink(spec, { base: '' });
     log(`browser: building the site`);
-    await build(dir);
+    await buildSite(dir, 300_000);
     const site = await serveStatic(dir);
     const { chromium } = await import('playwright-core');
     const browser = await chromium.launch({ executablePath: CHROMIUM, args: ARGS, headless: true });

@@ -1,11 +1,27 @@
 /**
- * A small static file server for the built site, with the cross-origin
+ * Building the site, and a small static file server for it, with the cross-origin
  * isolation headers the WASM backend wants. Only serves files under `root`;
  * no directory listings; unknown paths are 404.
  */
+import { execFile } from 'node:child_process';
 import { createServer, type Server } from 'node:http';
 import { readFile, stat } from 'node:fs/promises';
 import { extname, join, normalize, resolve, sep } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const ROOT = fileURLToPath(new URL('..', import.meta.url));
+
+/** Build the static site (vite build) into `outDir`; rejects with vite's own message. */
+export function buildSite(outDir: string, timeoutMs: number): Promise<void> {
+  return new Promise((ok, fail) => {
+    execFile(
+      process.execPath,
+      [join(ROOT, 'node_modules/vite/bin/vite.js'), 'build', '--outDir', outDir, '--emptyOutDir', '--logLevel', 'error'],
+      { cwd: ROOT, timeout: timeoutMs, maxBuffer: 64 * 1024 * 1024 },
+      (error, _stdout, stderr) => (error ? fail(new Error(`vite build failed: ${error.message}\n${stderr}`)) : ok()),
+    );
+  });
+}
 
 const TYPES: Record<string, string> = {
   '.html': 'text/html; charset=utf-8',

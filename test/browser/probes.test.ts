@@ -7,12 +7,11 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chromium, type Browser } from 'playwright-core';
-import { execFile } from 'node:child_process';
 import { existsSync, mkdirSync, readFileSync } from 'node:fs';
 import { join, resolve } from 'node:path';
 import { validateSpec } from '../../src/experiment/check.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
-import { serveStatic, type StaticServer } from '../../bench/static-server.ts';
+import { buildSite, serveStatic, type StaticServer } from '../../bench/static-server.ts';
 import { CHROMIUM, CHROMIUM_ARGS as ARGS } from '../../bench/chromium.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
@@ -20,24 +19,13 @@ const ROOT = resolve(import.meta.dirname, '../..');
 const SITE = join(ROOT, 'test-output', 'site-probes');
 const SHOTS = join(ROOT, 'test-output');
 
-function build(): Promise<void> {
-  return new Promise((ok, fail) => {
-    execFile(
-      process.execPath,
-      [join(ROOT, 'node_modules/vite/bin/vite.js'), 'build', '--outDir', SITE, '--emptyOutDir', '--logLevel', 'error'],
-      { cwd: ROOT, timeout: 80_000, maxBuffer: 64 * 1024 * 1024 },
-      (error, _stdout, stderr) => (error ? fail(new Error(`vite build failed: ${error.message}\n${stderr}`)) : ok()),
-    );
-  });
-}
-
 describe.skipIf(!existsSync(CHROMIUM))('look inside: probes, audit and alignment trace in Chromium', () => {
   let site: StaticServer;
   let browser: Browser;
 
   beforeAll(async () => {
     mkdirSync(SHOTS, { recursive: true });
-    await build();
+    await buildSite(SITE, 80_000);
     site = await serveStatic(SITE);
     browser = await chromium.launch({ executablePath: CHROMIUM, args: ARGS, headless: true });
   }, 90_000);

@@ -15,7 +15,7 @@ import { join, resolve } from 'node:path';
 import { validateSpec } from '../../src/experiment/check.ts';
 import type { ExperimentSpec } from '../../src/experiment/spec.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
-import { serveStatic, type StaticServer } from '../../bench/static-server.ts';
+import { buildSite, serveStatic, type StaticServer } from '../../bench/static-server.ts';
 import { CHROMIUM, CHROMIUM_ARGS as ARGS } from '../../bench/chromium.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
@@ -57,7 +57,7 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
       (out) => (JSON.parse(out) as { fingerprint: string }).fingerprint,
     );
     cliFingerprint.catch(() => undefined);
-    await run(process.execPath, [join(ROOT, 'node_modules/vite/bin/vite.js'), 'build', '--outDir', SITE, '--emptyOutDir', '--logLevel', 'error'], 170_000);
+    await buildSite(SITE, 170_000);
     site = await serveStatic(SITE);
     browser = await chromium.launch({ executablePath: CHROMIUM, args: ARGS, headless: true });
   }, 180_000);
