@@ -10,6 +10,7 @@ import type { RunResult } from '../experiment/run.ts';
 import type { BackendName } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
 import { failedResult } from '../experiment/run-record.ts';
+import { nodeWorkerEntry } from './worker-bundle.ts';
 
 /**
  * Young-generation size per worker. A training step allocates thousands of
@@ -36,7 +37,6 @@ export interface PoolOptions {
   faults?: ReadonlyMap<number, 'throw' | 'exit'>;
 }
 
-const WORKER_ENTRY = new URL('../../workers/node-worker.mjs', import.meta.url);
 
 export { failedResult };
 
@@ -63,10 +63,11 @@ export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options
     options.events?.onResult?.(result);
   };
 
+  let entry: URL | null = null;
   const spawn = () => {
-    if (cancelled || queue.length === 0) return;
+    if (cancelled || queue.length === 0 || entry == null) return;
     active++;
-    const worker = new Worker(WORKER_ENTRY, { resourceLimits: { maxYoungGenerationSizeMb: YOUNG_GENERATION_MB } });
+    const worker = new Worker(entry, { resourceLimits: { maxYoungGenerationSizeMb: YOUNG_GENERATION_MB } });
     live.add(worker);
     let current: RunPlan | null = null;
     let settled = false;
@@ -124,8 +125,14 @@ export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options
     send({ type: 'init', backend: options.backend ?? 'wasm' });
   };
 
-  for (let i = 0; i < wanted; i++) spawn();
   if (plans.length === 0) resolveAll([]);
+  else {
+    void nodeWorkerEntry().then((url) => {
+      entry = url;
+      for (let i = 0; i < wanted; i++) spawn();
+      finishIfIdle();
+    }, rejectAll);
+  }
 
   const cancel = async () => {
     cancelled = true;
