@@ -2,19 +2,22 @@
  * The Node worker as one prebuilt JavaScript file instead of TypeScript loaded
  * through tsx. Why: tsx's loader hooks cost each worker about 1.4 s of CPU to
  * start (register, resolve and transform every module on the shared loader
- * thread), which two workers starting together pay on two busy cores. The
- * bundle holds only the project's own modules; packages stay imports, so tfjs
- * and the rest load from node_modules exactly as before and results cannot
- * change.
+ * thread), which two workers starting together pay on two busy cores.
  *
- * The bundle is rebuilt whenever one of its inputs changes: its first line
- * records a content hash of every source file esbuild read. Checking that
- * costs a read of ~50 small files; building costs ~0.3 s, once.
+ * The bundle holds the project's own modules and tfjs-core's ESM gradient
+ * modules (so a worker registers gradients as the browser does, instead of
+ * loading the whole tfjs umbrella: another ~0.3 s). Every other package stays
+ * an import and loads from node_modules as before.
+ *
+ * It is rebuilt whenever an input changes: its first line records a content
+ * hash of every project file esbuild read (and of the inlined package's
+ * package.json). Checking costs a read of ~50 small files; building ~0.3 s, once.
  */
 import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
+import type { Plugin } from 'esbuild';
 
 export interface WorkerBundleOptions {
   /** Project root: entry and recorded inputs are relative to it. */
@@ -82,6 +85,28 @@ export function bundleIsFresh(options: WorkerBundleOptions): boolean {
   return Object.entries(inputs).every(([rel, hash]) => hashFile(path.join(options.root, rel)) === hash);
 }
 
+const INLINED_PACKAGE_PATHS = /^@tensorflow\/tfjs-core\/dist\//;
+
+const packagesExceptGradients: Plugin = {
+  name: 'packages-except-gradients',
+  setup(build) {
+    build.onResolve({ filter: /^[^./]/ }, (args) => (INLINED_PACKAGE_PATHS.test(args.path) ? undefined : { path: args.path, external: true }));
+  },
+};
+
+/**
+ * What to hash for freshness: every project file read, and for inlined package
+ * files only their package's package.json (its version), not hundreds of files.
+ */
+function recordKeys(inputs: readonly string[]): string[] {
+  const keys = new Set<string>();
+  for (const rel of inputs) {
+    const inPackage = /^(.*node_modules\/(?:@[^/]+\/)?[^/]+)\//.exec(rel);
+    keys.add(inPackage ? `${inPackage[1]}/package.json` : rel);
+  }
+  return [...keys].sort();
+}
+
 async function build(options: WorkerBundleOptions): Promise<void> {
   const esbuild = await import('esbuild');
   const result = await esbuild.build({
@@ -91,13 +116,16 @@ async function build(options: WorkerBundleOptions): Promise<void> {
     platform: 'node',
     format: 'esm',
     target: 'node20',
-    packages: 'external',
+    // Packages stay imports, except tfjs-core's ESM gradient modules (see
+    // src/engine/backend.ts), which Node cannot load by itself.
+    plugins: [packagesExceptGradients],
+    define: { FARFIELD_BUNDLED_GRADIENTS: 'true' },
     write: false,
     metafile: true,
     logLevel: 'silent',
   });
   const inputs: Record<string, string> = {};
-  for (const rel of Object.keys(result.metafile.inputs).sort()) {
+  for (const rel of recordKeys(Object.keys(result.metafile.inputs))) {
     const hash = hashFile(path.join(options.root, rel));
     if (hash == null) throw new Error(`input ${rel} vanished while bundling`);
     inputs[rel] = hash;

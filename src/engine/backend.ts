@@ -23,7 +23,9 @@
  * cannot be loaded (extensionless imports in a CommonJS package), and the only
  * prebuilt CommonJS bundle that registers them is the umbrella's Node build, so
  * Node loads that (about 0.5 s once per process; WebGL is registered but never
- * selected). Same gradient source code either way.
+ * selected). The CLI's worker bundle is the exception: esbuild resolves those
+ * ESM files, so its workers register gradients as the browser does. Same
+ * gradient source code (one tfjs version) every way.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import { registerGraphKernels } from './kernels-graph.ts';
@@ -93,6 +95,17 @@ async function loadWasm(options: BackendOptions | undefined): Promise<WasmModule
 
 let standardGradients: Promise<void> | null = null;
 
+/**
+ * Defined (true) only inside the CLI's prebuilt worker bundle
+ * (src/cli/worker-bundle.ts), which inlines tfjs-core's ESM gradient modules:
+ * then Node takes the browser's route and skips the umbrella's ~0.3 s load.
+ */
+declare const FARFIELD_BUNDLED_GRADIENTS: boolean | undefined;
+
+function gradientsAreBundled(): boolean {
+  return typeof FARFIELD_BUNDLED_GRADIENTS !== 'undefined' && FARFIELD_BUNDLED_GRADIENTS === true;
+}
+
 function isNode(): boolean {
   return typeof process !== 'undefined' && process.versions?.node != null;
 }
@@ -101,7 +114,7 @@ function isNode(): boolean {
 function ensureStandardGradients(): Promise<void> {
   standardGradients ??= (async () => {
     if (tf.getGradient('BatchMatMul') != null && tf.getGradient('Sum') != null) return;
-    if (isNode()) {
+    if (isNode() && !gradientsAreBundled()) {
       const umbrella = '@tensorflow/tfjs'; // a variable, so bundlers leave it alone
       await import(/* @vite-ignore */ umbrella);
     } else {
