@@ -20,7 +20,11 @@ export const TARGET_PRESET = 'shortest-path-max-vs-sum.json';
 
 export interface PresetTiming {
   file: string;
+  /** Workers asked for with --workers, or null for the CLI's default (one per core). */
+  workersRequested: number | null;
   runs: number;
+  /** Sum of the runs' own seconds (training and scoring, start-up excluded). */
+  runSeconds: number | null;
   /** Seconds from spawning the child to its exit. */
   wall: number;
   fingerprint: string | null;
@@ -64,15 +68,17 @@ export function choosePresets(wanted: string | undefined): string[] {
 
 interface ResultDoc {
   fingerprint?: string;
-  runs?: Array<{ status?: string }>;
+  runs?: Array<{ status?: string; seconds?: number }>;
   spec?: { seeds?: { count?: number }; arms?: unknown[] };
 }
 
-export async function timePreset(file: string, timeoutSeconds: number, stop?: AbortSignal): Promise<PresetTiming> {
+/** `workers` passes --workers; left out, the CLI uses one worker per core as a user's run does. */
+export async function timePreset(file: string, timeoutSeconds: number, stop?: AbortSignal, workers?: number): Promise<PresetTiming> {
   const memoryDir = mkdtempSync(join(tmpdir(), 'farfield-bench-mem-'));
   const loadStart = loadAverage()[0];
   const t0 = performance.now();
-  const child = spawn(process.execPath, ['-r', PROBE, BIN, 'run', join(PRESET_DIR, file), '--json', '--quiet'], {
+  const args = ['-r', PROBE, BIN, 'run', join(PRESET_DIR, file), '--json', '--quiet', ...(workers != null ? ['--workers', String(workers)] : [])];
+  const child = spawn(process.execPath, args, {
     cwd: ROOT,
     env: { ...process.env, FARFIELD_BENCH_MEMORY_DIR: memoryDir },
     stdio: ['ignore', 'pipe', 'pipe'],
@@ -122,7 +128,9 @@ export async function timePreset(file: string, timeoutSeconds: number, stop?: Ab
 
   const timing: PresetTiming = {
     file,
+    workersRequested: workers ?? null,
     runs: 0,
+    runSeconds: null,
     wall,
     fingerprint: null,
     peakWorkerRssMB: peakWorker && peakWorker.bytes / MB,
@@ -140,6 +148,7 @@ export async function timePreset(file: string, timeoutSeconds: number, stop?: Ab
     const doc = JSON.parse(Buffer.concat(out).toString('utf8')) as ResultDoc;
     timing.fingerprint = doc.fingerprint ?? null;
     timing.runs = doc.runs?.length ?? 0;
+    timing.runSeconds = doc.runs?.reduce((sum, r) => sum + (r.seconds ?? 0), 0) ?? null;
     timing.okRuns = doc.runs?.filter((r) => r.status === 'ok').length ?? 0;
     timing.seeds = doc.spec?.seeds?.count ?? null;
     timing.arms = doc.spec?.arms?.length ?? null;

@@ -26,7 +26,7 @@ import {
 } from './reference.ts';
 import { timePresetInBrowser, type BrowserTiming } from './browser.ts';
 import { evaluateTargets, type BenchDocument, type PerAggregator } from './report.ts';
-import { measureWorkers, type WorkersReport } from './workers.ts';
+import { measureWorkers, presetScaling, type PresetScaling, type WorkersReport } from './workers.ts';
 
 export interface BenchOptions {
   quick: boolean;
@@ -42,6 +42,8 @@ export interface BenchOptions {
   workers: number;
   workerTrainingSteps: number;
   workerRepeats: 1 | 2;
+  /** Time the target preset again on one worker, right after its all-core run (worker scaling on the real workload). */
+  presetScaling: boolean;
   presetTimeoutSeconds: number;
   /** Aborting stops the preset being timed and skips the rest; the document is still returned. */
   stopPresets?: AbortSignal;
@@ -60,6 +62,7 @@ export function defaultOptions(quick: boolean): BenchOptions {
     workers: Math.max(1, os.cpus().length),
     workerTrainingSteps: quick ? 5 : 100,
     workerRepeats: quick ? 1 : 2,
+    presetScaling: !quick,
     presetTimeoutSeconds: 1800,
   };
 }
@@ -206,6 +209,7 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
   // ---- presets ----
   options.onPhase?.('presets');
   const presets: PresetTiming[] = [];
+  let scaling: PresetScaling | null = null;
   let presetsNote: string;
   if (options.skipPresets) {
     presetsNote = options.quick ? 'presets skipped (--quick)' : 'presets skipped (--skip-presets)';
@@ -221,6 +225,12 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
       const timing = await timePreset(file, options.presetTimeoutSeconds, options.stopPresets);
       log(`presets: ${file} ${timing.wall.toFixed(1)} s${timing.error ? ` (${timing.error})` : ''}`);
       presets.push(timing);
+      if (file === TARGET_PRESET && options.presetScaling && os.cpus().length > 1 && !timing.error && !options.stopPresets?.aborted) {
+        log(`presets: ${file} again on 1 worker (worker scaling on the real workload) ...`);
+        const one = await timePreset(file, options.presetTimeoutSeconds, options.stopPresets, 1);
+        scaling = presetScaling(timing, one, os.cpus().length);
+        log(`presets: ${file} on 1 worker ${one.wall.toFixed(1)} s -> speedup ${scaling.speedup.toFixed(2)}x${one.error ? ` (${one.error})` : ''}`);
+      }
     }
     presetsNote =
       (skipped.length ? `interrupted: not run ${skipped.join(', ')}. ` : '') +
@@ -301,6 +311,7 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
       limit: limitText(launches, stepMs, maxProfile, maxProfile.matmulFlops, matmulCeiling),
     },
     workers,
+    presetScaling: scaling,
     presets,
     presetsNote,
     browser,

@@ -11,6 +11,7 @@ import { checkSpec } from '../src/experiment/check.ts';
 import { planRuns } from '../src/experiment/plan.ts';
 import { fingerprint } from '../src/experiment/results.ts';
 import { parseSpec, type ExperimentSpec } from '../src/experiment/spec.ts';
+import type { PresetTiming } from './presets.ts';
 
 /** A fixed small A/B: 2 arms x 2 seeds = 4 runs of the shortest-path max-vs-sum set-up with a short budget. */
 export function workersSpec(trainingSteps: number): ExperimentSpec {
@@ -110,5 +111,39 @@ export async function measureWorkers(workers: number, trainingSteps: number, rep
     sameFingerprint: [...one, ...all].every((t) => t.fingerprint === one[0]!.fingerprint),
     order,
     failedRuns: sum([...one, ...all], (t) => t.failed),
+  };
+}
+
+/**
+ * Worker scaling on the target preset itself, as a user runs it: its full
+ * runs through the CLI on one worker against one worker per core (the latter
+ * is the presets phase's own timing, taken just before). The short runs above
+ * weigh start-up and warm-up far more than a real experiment does.
+ */
+export interface PresetScaling {
+  file: string;
+  workers: number;
+  runs: number;
+  oneWorkerSeconds: number;
+  allWorkersSeconds: number;
+  speedup: number;
+  /** Sum of the runs' own seconds on one worker and side by side: the ratio is how much slower a run gets when the cores are shared. */
+  runSeconds: { one: number | null; all: number | null };
+  sameFingerprint: boolean;
+  error?: string;
+}
+
+export function presetScaling(all: PresetTiming, one: PresetTiming, workers: number): PresetScaling {
+  const error = one.error ?? all.error;
+  return {
+    file: all.file,
+    workers,
+    runs: all.runs,
+    oneWorkerSeconds: one.wall,
+    allWorkersSeconds: all.wall,
+    speedup: one.wall / all.wall,
+    runSeconds: { one: one.runSeconds, all: all.runSeconds },
+    sameFingerprint: one.fingerprint != null && one.fingerprint === all.fingerprint,
+    ...(error ? { error } : {}),
   };
 }

@@ -7,7 +7,9 @@ import { beforeAll, describe, expect, it } from 'vitest';
 import { spawn, spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import type { BenchDocument } from '../../bench/report.ts';
+import { evaluateTargets, type BenchDocument } from '../../bench/report.ts';
+import { presetScaling } from '../../bench/workers.ts';
+import type { PresetTiming } from '../../bench/presets.ts';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
 const bin = join(root, 'bin/farfield.mjs');
@@ -86,6 +88,40 @@ describe('farfield bench --quick --json', () => {
 
   it('skips presets in quick mode', () => {
     expect(doc.presets).toEqual([]);
+    expect(doc.presetScaling).toBeNull();
+  });
+
+  it('takes the worker speedup from the target preset when it was timed on both layouts, else from the short runs', () => {
+    const timing = (workersRequested: number | null, wall: number, runSeconds: number, fingerprint: string): PresetTiming => ({
+      file: 'shortest-path-max-vs-sum.json',
+      workersRequested,
+      runs: 16,
+      runSeconds,
+      wall,
+      fingerprint,
+      peakWorkerRssMB: null,
+      peakWorkerHeapMB: null,
+      peakWorkerExternalMB: null,
+      peakProcessRssMB: null,
+      workersSeen: 0,
+      seeds: 8,
+      arms: 2,
+      okRuns: 16,
+      exitCode: 0,
+      load: [0, 0],
+    });
+    const scaling = presetScaling(timing(null, 80, 150, 'abc'), timing(1, 150, 140, 'abc'), 2);
+    expect(scaling).toMatchObject({ speedup: 150 / 80, sameFingerprint: true, runSeconds: { one: 140, all: 150 } });
+    const withScaling = evaluateTargets({ ...doc, presetScaling: scaling }, 'shortest-path-max-vs-sum.json').find((t) => t.id === 'workerSpeedup')!;
+    expect(withScaling).toMatchObject({ value: 150 / 80, threshold: 1.8, status: 'pass' });
+    expect(withScaling.description).toMatch(/shortest-path-max-vs-sum\.json on 2 workers/);
+
+    const differing = presetScaling(timing(null, 80, 150, 'abc'), timing(1, 150, 140, 'xyz'), 2);
+    expect(evaluateTargets({ ...doc, presetScaling: differing }, 'shortest-path-max-vs-sum.json').find((t) => t.id === 'workerSpeedup')!.note).toMatch(/FINGERPRINTS DIFFER/);
+
+    const fallback = evaluateTargets({ ...doc, presetScaling: null }, 'shortest-path-max-vs-sum.json').find((t) => t.id === 'workerSpeedup')!;
+    expect(fallback.description).toMatch(/short runs/);
+    expect(fallback.value).toBe(doc.workers && doc.workers.workers > 1 ? doc.workers.speedup : null);
   });
 
   it('leaves no tensor behind, in the benchmark and over the long run', () => {

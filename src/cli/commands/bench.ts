@@ -13,12 +13,13 @@ export async function commandBench(args: string[]): Promise<number> {
     presets: { type: 'string' },
     'skip-presets': { type: 'boolean' },
     'skip-browser': { type: 'boolean' },
+    'skip-scaling': { type: 'boolean' },
     'long-steps': { type: 'string' },
     seconds: { type: 'string' },
     workers: { type: 'string' },
     'preset-timeout': { type: 'string' },
   });
-  if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"; usage: farfield bench [--quick] [--json] [--presets a,b | --skip-presets] [--skip-browser] [--long-steps N]`);
+  if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"; usage: farfield bench [--quick] [--json] [--presets a,b | --skip-presets] [--skip-browser] [--skip-scaling] [--long-steps N]`);
   // Loaded on demand, so other commands (and the `run` children the bench times) never load the bench code.
   const { defaultOptions, runBench } = await import('../../../bench/run-bench.ts');
   const { renderReport } = await import('../../../bench/report.ts');
@@ -37,6 +38,7 @@ export async function commandBench(args: string[]): Promise<number> {
   }
   if (values['skip-presets']) options.skipPresets = true;
   if (values['skip-browser']) options.browser = false;
+  if (values['skip-scaling']) options.presetScaling = false;
   options.longSteps = intFlag('long-steps', values['long-steps'], 10, 1_000_000) ?? options.longSteps;
   const seconds = intFlag('seconds', values.seconds, 1, 3600);
   if (seconds !== undefined) options.seconds = seconds;
