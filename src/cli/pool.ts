@@ -37,7 +37,6 @@ export interface PoolOptions {
   faults?: ReadonlyMap<number, 'throw' | 'exit'>;
 }
 
-
 export { failedResult };
 
 export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options: PoolOptions): { done: Promise<RunResult[]>; cancel: () => Promise<void> } {
