@@ -17,10 +17,6 @@ import { simdKernels } from './simd/simd-kernels.ts';
 
 import { kernelPatch } from './kernel-patch.ts';
 
-function sameShape(a: number[], b: number[]): boolean {
-  return a.length === b.length && a.every((d, i) => d === b[i]);
-}
-
 /** Output shape and each input's element strides in it (0 along broadcast axes), or null if the shapes do not broadcast. */
 export function broadcastPlan(aShape: number[], bShape: number[]): { shape: number[]; aStrides: number[]; bStrides: number[] } | null {
   const rank = Math.max(aShape.length, bShape.length);
@@ -75,7 +71,7 @@ function forEachRow(plan: Plan, inner: (o: number, pa: number, pb: number, n: nu
   const n = rank === 0 ? 1 : shape[rank - 1]!;
   const sa = rank === 0 ? 0 : aStrides[rank - 1]!;
   const sb = rank === 0 ? 0 : bStrides[rank - 1]!;
-  const total = shape.reduce((p, d) => p * d, 1);
+  const total = tf.util.sizeFromShape(shape);
   const index = new Array<number>(Math.max(0, rank - 1)).fill(0);
   let ia = 0;
   let ib = 0;
@@ -103,7 +99,7 @@ export function equalLoop(out: Uint8Array, a: Float32Array, b: Float32Array, pla
 function wrap(original: tf.KernelConfig): tf.KernelFunc {
   return (args) => {
     const { a, b } = args.inputs as { a: tf.TensorInfo; b: tf.TensorInfo };
-    if (a.dtype !== 'float32' || b.dtype !== 'float32' || sameShape(a.shape, b.shape)) return original.kernelFunc(args);
+    if (a.dtype !== 'float32' || b.dtype !== 'float32' || tf.util.arraysEqual(a.shape, b.shape)) return original.kernelFunc(args);
     const full = broadcastPlan(a.shape, b.shape);
     if (full == null) return original.kernelFunc(args); // let the stock kernel raise its own error
     const plan = collapsePlan(full);

@@ -16,7 +16,7 @@ import { simdKernels } from './simd/simd-kernels.ts';
 
 import { kernelPatch } from './kernel-patch.ts';
 
-const size = (shape: number[]) => shape.reduce((a, b) => a * b, 1);
+const size = tf.util.sizeFromShape;
 const fourByte = (dtype: string) => dtype === 'float32' || dtype === 'int32';
 
 function normaliseAxis(axis: number, rank: number): number {

@@ -85,7 +85,7 @@ function registerFor(backendName: 'wasm' | 'cpu'): void {
           const wasm = backend as BackendWasm;
           const simd = simdKernels(wasm);
           grads.forEach((g, i) => {
-            const s = simd != null ? simd.sumSquares(g, g.shape.reduce((a, b) => a * b, 1)) : sumSquaresLoop(wasm.typedArrayFromHeap(g) as Float32Array, 'float32');
+            const s = simd != null ? simd.sumSquares(g, tf.util.sizeFromShape(g.shape)) : sumSquaresLoop(wasm.typedArrayFromHeap(g) as Float32Array, 'float32');
             total = i === 0 ? s : f32(total + s);
           });
           const out = wasm.makeOutput([], 'float32');

@@ -14,7 +14,7 @@
  * SIMD, or a shared-memory threaded build) callers use the stock path.
  */
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
-import type { TensorInfo } from '@tensorflow/tfjs-core';
+import { util, type TensorInfo } from '@tensorflow/tfjs-core';
 import { KERNELS_WASM_BASE64 } from './kernels-binary.ts';
 
 interface Exports {
@@ -136,7 +136,7 @@ function load(backend: BackendWasm): SimdKernels | null {
     },
     adamStep(value, grad, m, v, [outValue, outM, outV], k) {
       exports.adam_step(
-        offset(value), offset(grad), offset(m), offset(v), offset(outValue), offset(outM), offset(outV), value.shape.reduce((a, b) => a * b, 1),
+        offset(value), offset(grad), offset(m), offset(v), offset(outValue), offset(outM), offset(outV), util.sizeFromShape(value.shape),
         k.scale, k.b1, k.c1, k.b2, k.c2, k.o1, k.o2, k.eps, k.nlr,
       );
     },
