@@ -5,7 +5,7 @@
 import type { ExperimentSpec } from '../src/experiment/spec.ts';
 import type { RunPlan } from '../src/experiment/plan.ts';
 import type { RunResult } from '../src/experiment/run.ts';
-import type { BackendName } from '../src/engine/backend.ts';
+import type { BackendName, EngineInfo } from '../src/engine/backend.ts';
 
 export type ToWorker =
   | { type: 'init'; backend: BackendName; threads?: number; wasmPaths?: string | Record<string, string> }
@@ -14,7 +14,7 @@ export type ToWorker =
   | { type: 'crash'; id: number; how: 'throw' | 'exit' };
 
 export type FromWorker =
-  | { type: 'ready'; backend: BackendName; threads: number; simd: boolean }
+  | ({ type: 'ready' } & EngineInfo)
   | { type: 'progress'; id: number; step: number; totalSteps: number; loss: number }
   | { type: 'done'; id: number; result: RunResult; tensors: number }
   | { type: 'error'; id: number | null; message: string };

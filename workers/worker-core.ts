@@ -23,7 +23,7 @@ export function createWorkerCore(post: (message: FromWorker) => void): (message:
         case 'init': {
           ready = initBackend(message.backend, { threads: message.threads, wasmPaths: message.wasmPaths });
           const info = await ready;
-          post({ type: 'ready', backend: info.backend, threads: info.threads, simd: info.simd });
+          post({ type: 'ready', ...info });
           return;
         }
         case 'crash': {

@@ -7,7 +7,7 @@ import { Worker } from 'node:worker_threads';
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
-import type { BackendName } from '../engine/backend.ts';
+import type { BackendName, EngineInfo } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
 import { failedResult } from '../experiment/run-record.ts';
 import { nodeWorkerEntry } from './worker-bundle.ts';
@@ -26,7 +26,7 @@ export interface PoolEvents {
   onStart?: (plan: RunPlan) => void;
   onProgress?: (plan: RunPlan, step: number, totalSteps: number, loss: number) => void;
   onResult?: (result: RunResult) => void;
-  onReady?: (info: { backend: BackendName; threads: number; simd: boolean }) => void;
+  onReady?: (info: EngineInfo) => void;
 }
 
 export interface PoolOptions {

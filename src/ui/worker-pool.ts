@@ -11,7 +11,7 @@
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
-import type { BackendName } from '../engine/backend.ts';
+import type { BackendName, EngineInfo } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
 import { failedResult } from '../experiment/run-record.ts';
 
@@ -26,7 +26,7 @@ export interface PoolWorker {
 export type FaultKind = 'throw' | 'exit';
 
 export interface PoolEvents {
-  onReady?: (info: { backend: BackendName; threads: number; simd: boolean }) => void;
+  onReady?: (info: EngineInfo) => void;
   onStart?: (plan: RunPlan) => void;
   onProgress?: (plan: RunPlan, step: number, totalSteps: number, loss: number) => void;
   onResult?: (result: RunResult) => void;
