@@ -102,8 +102,9 @@ export function train(args: TrainArgs): TrainOutcome {
           const updates = variables.filter((v) => grads[v.name] != null).map((variable) => ({ variable, grad: grads[variable.name]! }));
           const normValue = globalNorm(updates.map((u) => u.grad));
           const scale = Number.isFinite(normValue) && normValue > clipNorm ? clipNorm / normValue : 1;
-          if (Number.isFinite(normValue) && Number.isFinite(value.dataSync()[0]!)) optimizer.apply(updates, scale);
-          return { loss: value.dataSync()[0]!, norm: normValue };
+          const loss = value.dataSync()[0]!;
+          if (Number.isFinite(normValue) && Number.isFinite(loss)) optimizer.apply(updates, scale);
+          return { loss, norm: normValue };
         });
         lossValue = result.loss;
         gradNorm = result.norm;
