@@ -11,7 +11,8 @@
  * WASM Identity (used by the engine to save tensors for backprop) share the
  * buffer instead of copying it. src/engine/kernels-layout.ts moves Concat,
  * SplitV and bias-gradient sums onto Farfield's SIMD module, and
- * src/engine/kernels-broadcast.ts runs broadcasting + − × ÷ and Equal as loops.
+ * src/engine/kernels-broadcast.ts runs broadcasting Equal (the gradient of
+ * every max or min over an axis) as a loop.
  *
  * Import tf from '@tensorflow/tfjs-core' everywhere in engine code (never the
  * umbrella '@tensorflow/tfjs', which would pull in WebGL).

@@ -10,8 +10,9 @@
  * So the mean degree is `params.meanDegree` (default 3) whenever that is at
  * least the tree's 2(n-1)/n. With `params.edgeProbability` = p instead, the
  * edge count is round(p · n(n-1)/2), as in G(n, p) on average: the mean degree
- * then grows with n (p · (n-1)), so a size ladder also shifts degree. The law is not exactly G(n, m): the tree part is
- * biased toward a random recursive tree. Weights: uniform in `weightRange`,
+ * then grows with n (p · (n-1)), so a size ladder also shifts degree. The law
+ * is not exactly G(n, m): the tree part is biased toward a random recursive
+ * tree. Weights: uniform in `weightRange`,
  * drawn in edge-creation order.
  */
 import type Graph from 'graphology';
