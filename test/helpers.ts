@@ -1,3 +1,4 @@
+import { expect } from 'vitest';
 import { validateSpec } from '../src/experiment/check.ts';
 import { modelSchema, type ExperimentSpec, type SpecInput } from '../src/experiment/spec.ts';
 import { MessagePassingNetwork } from '../src/model/network.ts';
@@ -44,4 +45,19 @@ export function bellmanFordNetwork(options: { weightGain?: number; unreached?: n
   net.params.set('decode.w', [1]);
   net.params.set('decode.b', [0]);
   return net;
+}
+
+/**
+ * Two lists of float arrays are equal bit for bit (Object.is: NaN equals NaN,
+ * −0 differs from 0); on failure shows the first differing [array, index, a, b].
+ */
+export function expectSameBits(actual: number[][], expected: number[][]): void {
+  expect(actual.length).toBe(expected.length);
+  for (let t = 0; t < actual.length; t++) {
+    const a = actual[t]!;
+    const b = expected[t]!;
+    expect(a.length).toBe(b.length);
+    const differing = a.map((v, i) => (Object.is(v, b[i]) ? -1 : i)).filter((i) => i >= 0);
+    expect(differing.slice(0, 5).map((i) => [t, i, a[i], b[i]])).toEqual([]);
+  }
 }

@@ -11,6 +11,7 @@ import { initBackend } from '../../src/engine/backend.ts';
 import { setSimdKernelsEnabled } from '../../src/engine/simd/simd-kernels.ts';
 import { broadcastPlan, collapsePlan, patchWasmBroadcast, unpatchWasmBroadcast } from '../../src/engine/kernels-broadcast.ts';
 import { Rng } from '../../src/util/rng.ts';
+import { expectSameBits } from '../helpers.ts';
 
 beforeAll(async () => {
   await initBackend('wasm');
@@ -74,7 +75,7 @@ describe('broadcasting Equal on WASM', () => {
     unpatchWasmBroadcast();
     const stock = grad();
     patchWasmBroadcast();
-    expect(patched.every((v, i) => Object.is(v, stock[i]))).toBe(true);
+    expectSameBits([patched], [stock]);
     x.dispose();
   });
 

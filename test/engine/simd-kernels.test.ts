@@ -15,6 +15,7 @@ import { initBackend } from '../../src/engine/backend.ts';
 import { setSimdKernelsEnabled, simdKernels } from '../../src/engine/simd/simd-kernels.ts';
 import { gatherPairAdd, segmentMax, segmentMin } from '../../src/model/ops.ts';
 import { Rng } from '../../src/util/rng.ts';
+import { expectSameBits } from '../helpers.ts';
 import { compileKernels, renderBinaryModule } from '../../scripts/build-simd.mjs';
 
 beforeAll(async () => {
@@ -43,17 +44,6 @@ function bothWays(op: () => tf.Tensor | tf.Tensor[]): [number[][], number[][]] {
   const off = tf.tidy(() => read(op()));
   setSimdKernelsEnabled(true);
   return [on, off];
-}
-
-function expectSameBits(on: number[][], off: number[][]): void {
-  expect(on.length).toBe(off.length);
-  for (let t = 0; t < on.length; t++) {
-    const a = on[t]!;
-    const b = off[t]!;
-    expect(a.length).toBe(b.length);
-    const differing = a.map((v, i) => (Object.is(v, b[i]) ? -1 : i)).filter((i) => i >= 0);
-    expect(differing.slice(0, 5).map((i) => [i, a[i], b[i]])).toEqual([]);
-  }
 }
 
 describe('SIMD module', () => {

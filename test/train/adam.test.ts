@@ -10,6 +10,7 @@ import { initBackend, type BackendName } from '../../src/engine/backend.ts';
 import { setSimdKernelsEnabled } from '../../src/engine/simd/simd-kernels.ts';
 import { FusedAdam, globalNorm } from '../../src/train/adam.ts';
 import { Rng } from '../../src/util/rng.ts';
+import { expectSameBits } from '../helpers.ts';
 
 const SHAPES = [[32, 32], [32], [3, 5], [1], [7, 13]];
 
@@ -53,13 +54,6 @@ function both(backend: BackendName, steps: number, scales: number[], lr: number)
   fused.dispose();
   tf.dispose([...stockVars, ...fusedVars]);
   return out;
-}
-
-function expectSameBits(a: number[][], b: number[][]): void {
-  for (let t = 0; t < a.length; t++) {
-    const bad = a[t]!.map((x, i) => (Object.is(x, b[t]![i]) ? -1 : i)).filter((i) => i >= 0);
-    expect(bad.slice(0, 3).map((i) => [t, i, a[t]![i], b[t]![i]])).toEqual([]);
-  }
 }
 
 describe.each(['wasm', 'cpu'] as const)('fused Adam on %s', (backend) => {
