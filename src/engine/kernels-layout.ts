@@ -23,6 +23,26 @@ function normaliseAxis(axis: number, rank: number): number {
   return axis < 0 ? axis + rank : axis;
 }
 
+/** `shape` with its `axis` dimension set to `length`. */
+function withAxis(shape: number[], axis: number, length: number): number[] {
+  const out = [...shape];
+  out[axis] = length;
+  return out;
+}
+
+/**
+ * Start column of each block when blocks of these widths sit side by side in
+ * a row (viewed as [outer, Σ widths]): the layout concat writes and split reads.
+ */
+function blockStarts(widths: readonly number[]): number[] {
+  let column = 0;
+  return widths.map((w) => {
+    const start = column;
+    column += w;
+    return start;
+  });
+}
+
 function concat(original: tf.KernelConfig): tf.KernelFunc {
   return (args) => {
     const backend = args.backend as BackendWasm;
@@ -37,14 +57,8 @@ function concat(original: tf.KernelConfig): tf.KernelFunc {
     const outer = size(inputs[0]!.shape.slice(0, axis));
     const widths = inputs.map((t) => size(t.shape.slice(axis)));
     const total = widths.reduce((a, b) => a + b, 0);
-    const outShape = [...inputs[0]!.shape];
-    outShape[axis] = inputs.reduce((s, t) => s + t.shape[axis]!, 0);
-    const out = backend.makeOutput(outShape, inputs[0]!.dtype);
-    let column = 0;
-    inputs.forEach((t, i) => {
-      simd.copyBlock(t, 0, out, column, outer, widths[i]!, widths[i]!, total);
-      column += widths[i]!;
-    });
+    const out = backend.makeOutput(withAxis(inputs[0]!.shape, axis, inputs.reduce((s, t) => s + t.shape[axis]!, 0)), inputs[0]!.dtype);
+    blockStarts(widths).forEach((start, i) => simd.copyBlock(inputs[i]!, 0, out, start, outer, widths[i]!, widths[i]!, total));
     return out;
   };
 }
@@ -61,16 +75,10 @@ function splitV(original: tf.KernelConfig): tf.KernelFunc {
     const outer = size(x.shape.slice(0, axis));
     const inner = size(x.shape.slice(axis + 1));
     const total = x.shape[axis]! * inner;
-    const outs = sizes.map((s) => {
-      const shape = [...x.shape];
-      shape[axis] = s;
-      return backend.makeOutput(shape, x.dtype);
-    });
-    let column = 0;
-    outs.forEach((o, i) => {
-      const width = sizes[i]! * inner;
-      if (width > 0) simd.copyBlock(x, column, o, 0, outer, width, total, width);
-      column += width;
+    const outs = sizes.map((s) => backend.makeOutput(withAxis(x.shape, axis, s), x.dtype));
+    const widths = sizes.map((s) => s * inner);
+    blockStarts(widths).forEach((start, i) => {
+      if (widths[i]! > 0) simd.copyBlock(x, start, outs[i]!, 0, outer, widths[i]!, total, widths[i]!);
     });
     return outs;
   };
