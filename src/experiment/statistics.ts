@@ -6,9 +6,16 @@
  * - Metrics are errors: LOWER IS BETTER.
  * - `a` and `b` passed together are PAIRED by seed: `a[i]` and `b[i]` come from
  *   the same seed (same data, same test graphs). The caller removes pairs where
- *   either value is missing, NaN or from a failed run before calling.
- * - Functions that need finite inputs throw on NaN/Infinity rather than
- *   silently producing a number that looks meaningful.
+ *   either value is missing or NaN before calling.
+ * - Failed runs (diverged training, a non-finite test error) may be passed as
+ *   `+Infinity` to the rank-based functions `wilcoxonSignedRank` and
+ *   `probabilityOfImprovement`, which rank such a run as the worst possible
+ *   outcome (two failed runs on the same seed are a tie). Everything else
+ *   (means, bootstrap intervals, the unpaired probability of improvement)
+ *   needs finite values; callers skip those when `countNonFinite` > 0.
+ * - Functions throw on inputs they cannot use (NaN anywhere, -Infinity
+ *   anywhere, +Infinity where finite values are needed) rather than silently
+ *   producing a number that looks meaningful.
  */
 import type { Rng } from '../util/rng.ts';
 
@@ -22,6 +29,33 @@ function assertFinite(xs: readonly number[], what: string): void {
       throw new Error(`experiment/statistics: ${what}[${i}] is ${xs[i]}; remove missing or failed runs before computing statistics`);
     }
   }
+}
+
+/**
+ * For the rank-based functions: finite values and +Infinity (a failed run,
+ * ranked worst) are accepted; NaN and -Infinity are not.
+ */
+function assertFiniteOrFailed(xs: readonly number[], what: string): void {
+  for (let i = 0; i < xs.length; i++) {
+    const x = xs[i]!;
+    if (Number.isNaN(x)) {
+      throw new Error(`experiment/statistics: ${what}[${i}] is NaN; remove missing runs, and pass a failed run as +Infinity`);
+    }
+    if (x === -Infinity) {
+      throw new Error(`experiment/statistics: ${what}[${i}] is -Infinity; errors are lower-is-better, so a failed run must be +Infinity`);
+    }
+  }
+}
+
+/**
+ * Number of entries that are not finite numbers (NaN, +Infinity or -Infinity).
+ * Callers use it to decide whether a bootstrap interval can be computed at all
+ * (the bootstrap refuses non-finite values) and to word caveats.
+ */
+export function countNonFinite(xs: readonly number[]): number {
+  let k = 0;
+  for (const x of xs) if (!Number.isFinite(x)) k++;
+  return k;
 }
 
 function assertSameLength(a: readonly number[], b: readonly number[]): void {
@@ -175,7 +209,10 @@ export function bootstrapInterval(
  * `statistic(d)` (default: the mean difference) and the interval is the
  * percentile bootstrap over resampled PAIRS (resampling d_i is the same as
  * resampling whole seed pairs). Same options, determinism and limits as
- * `bootstrapInterval`. Throws if the lengths differ or a value is not finite.
+ * `bootstrapInterval`. Throws if the lengths differ or a value is not finite,
+ * including +Infinity from a failed run: a mean difference with a failed run
+ * in it is not a number, so callers skip the interval when `countNonFinite`
+ * of either arm is > 0 (the signed-rank test still ranks such pairs).
  */
 export function pairedBootstrapDifference(
   a: readonly number[],
@@ -197,11 +234,14 @@ export function pairedBootstrapDifference(
  * Paired probability that A beats B: the fraction of seed pairs i with
  * a_i < b_i (lower error wins), counting exact ties as 1/2.
  * 0.5 means no tendency, 1 means A wins on every seed. NaN for empty input.
+ *
+ * A failed run may be passed as +Infinity: it loses to any finite error, and
+ * two failed runs on the same seed are a tie (1/2). NaN and -Infinity throw.
  */
 export function probabilityOfImprovement(a: readonly number[], b: readonly number[]): number {
   assertSameLength(a, b);
-  assertFinite(a, 'a');
-  assertFinite(b, 'b');
+  assertFiniteOrFailed(a, 'a');
+  assertFiniteOrFailed(b, 'b');
   if (a.length === 0) return NaN;
   let s = 0;
   for (let i = 0; i < a.length; i++) s += a[i]! < b[i]! ? 1 : a[i] === b[i] ? 0.5 : 0;
@@ -264,8 +304,18 @@ export function normalCdf(x: number): number {
 export interface WilcoxonResult {
   /** Number of non-zero differences actually ranked. */
   n: number;
-  /** Number of pairs with a_i - b_i exactly 0, dropped before ranking. */
+  /**
+   * Number of pairs with a_i - b_i exactly 0, dropped before ranking. Includes
+   * pairs where both runs failed (+Infinity on both sides), see `bothInfinite`.
+   */
   zeros: number;
+  /** Pairs where both values were +Infinity (both runs failed); counted in `zeros`. */
+  bothInfinite: number;
+  /**
+   * Ranked pairs whose difference is infinite: exactly one of the two runs
+   * failed (+Infinity). They share the largest ranks (midranks among them).
+   */
+  infinite: number;
   /** Sum of (mid)ranks of |d| over pairs with a_i > b_i. */
   wPlus: number;
   /** Sum of (mid)ranks of |d| over pairs with a_i < b_i. */
@@ -288,24 +338,113 @@ export interface WilcoxonResult {
 
 export interface WilcoxonOptions {
   /**
-   * Largest n for which the exact distribution is enumerated (default and
-   * maximum 50; the counting is exact in doubles up to 2^53). Above it the
-   * normal approximation is used and the result says `exact: false`.
+   * Largest n for which the exact distribution is used (default and maximum
+   * 64, the seed cap). Above it the normal approximation is used and the
+   * result says `exact: false`.
    */
   maxExactN?: number;
 }
 
-/** Largest n the exact enumeration supports (counts stay below 2^53). */
-export const WILCOXON_MAX_EXACT_N = 50;
+/**
+ * Largest n the exact signed-rank distribution supports (the seed cap). At
+ * n = 64 single counts of sign assignments reach about 4.9e16 untied and
+ * C(64, 32) ~ 1.8e18 when all |d| are tied, beyond the 2^53 ~ 9.0e15 up to
+ * which doubles count exactly, so counts are kept in two 32-bit limbs (see
+ * `LimbCounts`).
+ */
+export const WILCOXON_MAX_EXACT_N = 64;
+
+const LIMB = 2 ** 32;
 
 /**
- * Ranks of |d| (all entries non-zero), doubled so that midranks stay integers:
- * a group of tied values occupying 1-based positions i..j gets midrank (i+j)/2,
- * i.e. doubled rank i + j. Returned in the original order.
+ * Exact null counts held in two double "limbs": the number of sign assignments
+ * with doubled positive-rank sum s is hi[s] * 2^32 + lo[s], with lo[s] an
+ * integer in [0, 2^32). With n <= 64 every hi[s] is an integer <= 2^32, so
+ * every addition below is exact in doubles.
+ */
+interface LimbCounts {
+  n: number;
+  hi: Float64Array;
+  lo: Float64Array;
+}
+
+/** Total of the doubled ranks, after checking n and that every entry is a non-negative integer. */
+function checkDoubledRanks(doubledRanks: readonly number[]): number {
+  if (doubledRanks.length > WILCOXON_MAX_EXACT_N) {
+    throw new Error(`experiment/statistics: exact signed-rank distribution supports n <= ${WILCOXON_MAX_EXACT_N}`);
+  }
+  let total = 0;
+  for (const r of doubledRanks) {
+    if (!Number.isInteger(r) || r < 0) throw new Error('experiment/statistics: doubled ranks must be non-negative integers');
+    total += r;
+  }
+  return total;
+}
+
+/**
+ * Subset-sum dynamic programming over the doubled ranks, O(n * sum of ranks),
+ * with exact two-limb counts. n = 64 untied (doubled sum 4160) is about
+ * 87 000 limb additions: a few milliseconds at most.
+ */
+function limbNullCounts(doubledRanks: readonly number[]): LimbCounts {
+  const total = checkDoubledRanks(doubledRanks);
+  const hi = new Float64Array(total + 1);
+  const lo = new Float64Array(total + 1);
+  lo[0] = 1;
+  let reach = 0;
+  for (const r of doubledRanks) {
+    reach += r;
+    // Descending s so that counts[s - r] is still the value before this rank was added
+    // (for r = 0 it is the same cell, read before it is written: every count doubles).
+    for (let s = reach; s >= r; s--) {
+      let l = lo[s]! + lo[s - r]!;
+      let h = hi[s]! + hi[s - r]!;
+      if (l >= LIMB) {
+        l -= LIMB;
+        h += 1;
+      }
+      lo[s] = l;
+      hi[s] = h;
+    }
+  }
+  return { n: doubledRanks.length, hi, lo };
+}
+
+/**
+ * P(from <= 2W+ <= to) = (sum of counts) / 2^n, correctly rounded: the limb
+ * sums are exact (sum of hi <= 2^32; sum of lo < (to - from + 1) * 2^32, below
+ * 2^45 for midranks of n <= 64, whose doubled sum is at most 4160), and the
+ * result is hiSum * 2^(32-n) + loSum * 2^-n with both products exact, so the
+ * only rounding is the final addition.
+ */
+function limbProbability(c: LimbCounts, from: number, to: number): number {
+  let h = 0;
+  let l = 0;
+  const last = Math.min(to, c.hi.length - 1);
+  for (let s = Math.max(0, from); s <= last; s++) {
+    h += c.hi[s]!;
+    l += c.lo[s]!;
+  }
+  const carry = Math.floor(l / LIMB);
+  h += carry;
+  l -= carry * LIMB;
+  return h * 2 ** (32 - c.n) + l * 2 ** -c.n;
+}
+
+/** Orders numbers including +Infinity (subtraction would give NaN for Infinity - Infinity). */
+function compareNumbers(p: number, q: number): number {
+  return p < q ? -1 : p > q ? 1 : 0;
+}
+
+/**
+ * Ranks of |d| (all entries non-zero, possibly +Infinity), doubled so that
+ * midranks stay integers: a group of tied values occupying 1-based positions
+ * i..j gets midrank (i+j)/2, i.e. doubled rank i + j. Returned in the original
+ * order. Infinite values sort last and tie with each other.
  */
 function doubledMidranks(absValues: readonly number[]): number[] {
   const n = absValues.length;
-  const order = absValues.map((_, i) => i).sort((p, q) => absValues[p]! - absValues[q]!);
+  const order = absValues.map((_, i) => i).sort((p, q) => compareNumbers(absValues[p]!, absValues[q]!));
   const ranks = new Array<number>(n);
   let start = 0;
   while (start < n) {
@@ -322,30 +461,37 @@ function doubledMidranks(absValues: readonly number[]): number[] {
  * Exact null distribution of the doubled signed-rank statistic 2*W+ for the
  * given doubled ranks: `counts[s]` is the number of the 2^n equally likely sign
  * assignments whose positive ranks add up to s (in doubled units). Computed by
- * subset-sum dynamic programming over the ranks, O(n * sum of ranks).
+ * subset-sum dynamic programming over the ranks, O(n * sum of ranks), n <= 64.
+ *
+ * The counts are computed exactly (see `signedRankNullCountsExact`) and then
+ * returned as doubles: exact whenever a count is below 2^53, which always
+ * holds for n <= 53; above that, large counts are the nearest double.
  */
 export function signedRankNullCounts(doubledRanks: readonly number[]): number[] {
-  if (doubledRanks.length > WILCOXON_MAX_EXACT_N) {
-    throw new Error(`experiment/statistics: exact signed-rank distribution supports n <= ${WILCOXON_MAX_EXACT_N}`);
-  }
-  let total = 0;
-  for (const r of doubledRanks) {
-    if (!Number.isInteger(r) || r < 0) throw new Error('experiment/statistics: doubled ranks must be non-negative integers');
-    total += r;
-  }
-  const counts = new Array<number>(total + 1).fill(0);
-  counts[0] = 1;
-  let reach = 0;
-  for (const r of doubledRanks) {
-    reach += r;
-    for (let s = reach; s >= r; s--) counts[s]! += counts[s - r]!;
-  }
-  return counts;
+  const c = limbNullCounts(doubledRanks);
+  return Array.from(c.hi, (h, s) => h * LIMB + c.lo[s]!);
+}
+
+/** As `signedRankNullCounts`, but every count exact as a bigint (they sum to 2^n). */
+export function signedRankNullCountsExact(doubledRanks: readonly number[]): bigint[] {
+  const c = limbNullCounts(doubledRanks);
+  return Array.from(c.hi, (h, s) => (BigInt(h) << 32n) + BigInt(c.lo[s]!));
+}
+
+/**
+ * Exact null probabilities P(2W+ = s) = counts[s] / 2^n, each correctly
+ * rounded to a double (relative error <= 2^-53). Same input rules as
+ * `signedRankNullCounts`.
+ */
+export function signedRankNullProbabilities(doubledRanks: readonly number[]): number[] {
+  const c = limbNullCounts(doubledRanks);
+  return Array.from(c.hi, (_, s) => limbProbability(c, s, s));
 }
 
 /**
  * Exact null counts of W+ for n untied observations (ranks 1..n), indexed by
- * W+ = 0..n(n+1)/2. Convenience for tables and tests.
+ * W+ = 0..n(n+1)/2. Convenience for tables and tests; doubles, so exact for
+ * n <= 53 (see `signedRankNullCounts`).
  */
 export function signedRankNullCountsUntied(n: number): number[] {
   const doubled = signedRankNullCounts(Array.from({ length: n }, (_, i) => 2 * (i + 1)));
@@ -355,34 +501,54 @@ export function signedRankNullCountsUntied(n: number): number[] {
 /**
  * Wilcoxon signed-rank test on paired samples a, b (differences d = a - b).
  *
- * - Zero differences are DROPPED before ranking (Wilcoxon's original method);
- *   `n` counts the remaining pairs and `zeros` the dropped ones.
+ * - Zero differences are DROPPED before ranking (Wilcoxon's original method,
+ *   not Pratt's); `n` counts the remaining pairs and `zeros` the dropped ones.
  * - Tied |d| get midranks. The exact p-value is then the exact permutation
  *   distribution of W+ over the 2^n sign flips of THOSE midranks (not the
- *   untied table), computed by dynamic programming on doubled ranks.
- * - Exact for n <= maxExactN (default 50). Above that: normal approximation
- *   with mean n(n+1)/4, variance n(n+1)(2n+1)/24 - sum(t^3 - t)/48 over tie
- *   groups of size t, and a continuity correction of 1/2; `exact` is false.
+ *   untied table), computed by dynamic programming on doubled ranks with
+ *   exact integer counts; each p-value is correctly rounded.
+ * - Exact for n <= maxExactN (default and maximum 64). Above that: normal
+ *   approximation with mean n(n+1)/4, variance n(n+1)(2n+1)/24 - sum(t^3 - t)/48
+ *   over tie groups of size t, and a continuity correction of 1/2; `exact` is
+ *   false.
+ * - Failed runs: either sample may contain +Infinity (a run that diverged or
+ *   gave a non-finite test error). Then d = +Infinity - finite = +Infinity
+ *   (worst for A), finite - Infinity = -Infinity (worst for B), and
+ *   Infinity - Infinity counts as a zero difference (both failed: a tie,
+ *   dropped like other zeros; also counted in `bothInfinite`). Infinite |d|
+ *   get the largest ranks, tied among themselves (midranks); `infinite`
+ *   counts them. A finite difference that overflows (|a - b| > ~1.8e308) is
+ *   infinite too and ranks with them.
  * - Ties in |d| and zero differences are decided by exact floating-point
  *   equality.
  * - With no non-zero differences, all p-values are 1.
  *
- * Throws if the lengths differ or a value is not finite.
+ * Throws if the lengths differ, or on NaN or -Infinity in either sample.
  */
 export function wilcoxonSignedRank(a: readonly number[], b: readonly number[], options: WilcoxonOptions = {}): WilcoxonResult {
   assertSameLength(a, b);
-  assertFinite(a, 'a');
-  assertFinite(b, 'b');
+  assertFiniteOrFailed(a, 'a');
+  assertFiniteOrFailed(b, 'b');
   const maxExactN = options.maxExactN ?? WILCOXON_MAX_EXACT_N;
   if (!Number.isInteger(maxExactN) || maxExactN < 0 || maxExactN > WILCOXON_MAX_EXACT_N) {
     throw new Error(`experiment/statistics: maxExactN must be an integer in [0, ${WILCOXON_MAX_EXACT_N}]`);
   }
   const diffs: number[] = [];
   let zeros = 0;
+  let bothInfinite = 0;
+  let infinite = 0;
   for (let i = 0; i < a.length; i++) {
-    const d = a[i]! - b[i]!;
-    if (d === 0) zeros++;
-    else diffs.push(d);
+    const x = a[i]!;
+    const y = b[i]!;
+    // Equal values (including +Infinity on both sides, where x - y would be NaN) are a zero difference.
+    if (x === y) {
+      zeros++;
+      if (x === Infinity) bothInfinite++;
+      continue;
+    }
+    const d = x - y;
+    if (!Number.isFinite(d)) infinite++;
+    diffs.push(d);
   }
   const n = diffs.length;
   const ranks = doubledMidranks(diffs.map(Math.abs));
@@ -395,22 +561,15 @@ export function wilcoxonSignedRank(a: readonly number[], b: readonly number[], o
   const ties = new Set(ranks).size < n;
   const wPlus = plus2 / 2;
   const wMinus = minus2 / 2;
-  const base = { n, zeros, wPlus, wMinus, statistic: Math.min(wPlus, wMinus), ties };
+  const base = { n, zeros, bothInfinite, infinite, wPlus, wMinus, statistic: Math.min(wPlus, wMinus), ties };
   if (n === 0) {
     return { ...base, pTwoSided: 1, pLessA: 1, pGreaterA: 1, exact: true, minAchievableP: 1 };
   }
 
   if (n <= maxExactN) {
-    const counts = signedRankNullCounts(ranks);
-    const total = 2 ** n;
-    let le = 0;
-    let ge = 0;
-    for (let s = 0; s < counts.length; s++) {
-      if (s <= plus2) le += counts[s]!;
-      if (s >= plus2) ge += counts[s]!;
-    }
-    const pLessA = le / total;
-    const pGreaterA = ge / total;
+    const counts = limbNullCounts(ranks);
+    const pLessA = limbProbability(counts, 0, plus2);
+    const pGreaterA = limbProbability(counts, plus2, counts.hi.length - 1);
     return {
       ...base,
       pLessA,

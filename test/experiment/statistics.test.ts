@@ -1,7 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { Rng } from '../../src/util/rng.ts';
 import {
+  WILCOXON_MAX_EXACT_N,
   bootstrapInterval,
+  countNonFinite,
   extrapolationGap,
   extrapolationRatio,
   interquartileMean,
@@ -14,7 +16,9 @@ import {
   quantileSorted,
   seedsNeededForSignificance,
   signedRankNullCounts,
+  signedRankNullCountsExact,
   signedRankNullCountsUntied,
+  signedRankNullProbabilities,
   summarize,
   wilcoxonSignedRank,
 } from '../../src/experiment/statistics.ts';
@@ -278,14 +282,413 @@ describe('Wilcoxon signed-rank: exact null distribution', () => {
     // hand-worked: all 60 |d| equal -> one tie group t = 60; variance n(n+1)(2n+1)/24 - (t^3 - t)/48
     // = n(n+1)^2/16 (every rank is (n+1)/2). With 40 positive, 20 negative: W+ = 40 * 30.5 = 1220,
     // mu = 915, sd = sqrt(60 * 61^2 / 16) = 118.13..., z (corrected) = (1220 - 915 - 0.5) / sd.
+    // n = 60 is within the exact range now, so maxExactN: 50 forces the approximation.
     const d = Array.from({ length: 60 }, (_, i) => (i < 40 ? 1 : -1));
     const { a, b } = fromDiffs(d);
-    const r = wilcoxonSignedRank(a, b);
+    const r = wilcoxonSignedRank(a, b, { maxExactN: 50 });
     expect(r.exact).toBe(false);
     expect(r.wPlus).toBe(1220);
     const sd = Math.sqrt((60 * 61 * 61) / 16);
     expect(r.pGreaterA).toBeCloseTo(1 - normalCdf((1220 - 915 - 0.5) / sd), 14);
     expect(r.pTwoSided).toBeCloseTo(2 * r.pGreaterA, 14);
+  });
+});
+
+/** Coefficients of prod_i (1 + x^w_i) as exact bigints: the null counts of the signed-rank sum for weights w. */
+function generatingFunctionCounts(weights: readonly number[]): bigint[] {
+  // Forward polynomial multiplication (a different route from the module's in-place two-limb DP).
+  let poly: bigint[] = [1n];
+  for (const w of weights) {
+    const next = new Array<bigint>(poly.length + w).fill(0n);
+    for (let i = 0; i < poly.length; i++) {
+      next[i] = next[i]! + poly[i]!;
+      next[i + w] = next[i + w]! + poly[i]!;
+    }
+    poly = next;
+  }
+  return poly;
+}
+
+/** sum(counts[from..to]) / 2^n, correctly rounded (Number(bigint) rounds to nearest; dividing by 2^n is exact). */
+function bigTail(counts: readonly bigint[], from: number, to: number, n: number): number {
+  let s = 0n;
+  for (let i = from; i <= to; i++) s += counts[i]!;
+  return Number(s) / 2 ** n;
+}
+
+describe('Wilcoxon signed-rank: published examples', () => {
+  it('Darwin/Fisher maize height differences (no ties, no zeros): exact p = 0.041259765625', () => {
+    // Source: SciPy reference guide, scipy.stats.wilcoxon, "Examples" section
+    // (https://docs.scipy.org/doc/scipy/reference/generated/scipy.stats.wilcoxon.html; the same text is the
+    // docstring of scipy/stats/_morestats.py in scipy >= 1.9). Data: differences in height between cross- and
+    // self-fertilized corn plants, from Wilcoxon (1945), Biometrics Bulletin 1, 80-83 (Fisher's Design of
+    // Experiments data). Published: two-sided statistic 24.0, p = 0.041259765625 ("The p-values above are exact");
+    // alternative='greater': statistic 96.0, p = 0.0206298828125 (= 676 / 2^15).
+    // (Older SciPy pages, e.g. 1.3-1.8, print 0.04088813291185591: that is the normal approximation without
+    // continuity correction, not the exact value.)
+    const d = [6, 8, 14, 16, 23, 24, 28, 29, 41, -48, 49, 56, 60, -67, 75];
+    const { a, b } = fromDiffs(d);
+    const r = wilcoxonSignedRank(a, b);
+    expect(r).toMatchObject({ n: 15, zeros: 0, ties: false, exact: true, wPlus: 96, wMinus: 24, statistic: 24 });
+    expect(r.pTwoSided).toBe(0.041259765625);
+    expect(r.pGreaterA).toBe(0.0206298828125); // SciPy's alternative='greater' is our "A has higher error"
+  });
+
+  it('Hollander & Wolfe depression-scale data (no ties): one-sided 0.01953, two-sided 0.03906', () => {
+    // Source: R package exactRankTests (T. Hothorn), man/wilcox.exact.Rd examples and the saved R 3.6.0 output
+    // tests/exactRankTests-Ex.Rout.save (CRAN mirror github.com/cran/exactRankTests). Data: Hollander & Wolfe
+    // (1973), Nonparametric Statistical Methods, pp. 29f: Hamilton depression scale factor IV, first (x) and
+    // second (y) visit, 9 patients (also the example of R's own ?wilcox.test).
+    // Published: wilcox.exact(x, y, paired = TRUE, alternative = "greater") -> V = 40, p-value = 0.01953;
+    //            wilcox.exact(y, x, paired = TRUE) -> V = 5, p-value = 0.03906 (two-sided).
+    const x = [1.83, 0.5, 1.62, 2.48, 1.68, 1.88, 1.55, 3.06, 1.3];
+    const y = [0.878, 0.647, 0.598, 2.05, 1.06, 1.29, 1.06, 3.14, 1.29];
+    const r = wilcoxonSignedRank(x, y);
+    expect(r).toMatchObject({ n: 9, zeros: 0, ties: false, wPlus: 40, wMinus: 5 });
+    expect(r.pGreaterA).toBeCloseTo(0.01953, 5); // exactly 10/512
+    expect(r.pTwoSided).toBeCloseTo(0.03906, 5);
+    const swapped = wilcoxonSignedRank(y, x);
+    expect(swapped.wPlus).toBe(5);
+    expect(swapped.pTwoSided).toBe(r.pTwoSided);
+    expect(swapped.pLessA).toBe(r.pGreaterA);
+  });
+
+  it('serum antigen data with 4 zero differences (dropped, Wilcoxon\'s method): V = 124, p = 0.002136', () => {
+    // Source: exactRankTests, man/wilcox.exact.Rd ("Data from the StatXact-4 manual, page 167, serum antigen
+    // level"; "StatXact 4 for Windows: p.value=0.0021 (page 168)") and the saved output of example(sal) in
+    // tests/exactRankTests-Ex.Rout.save: "Exact Wilcoxon signed rank test ... V = 124, p-value = 0.002136".
+    // Convention: wilcox.exact drops zero differences before ranking (x <- x[x != 0] in R/wilcox.exact.R), as we
+    // do. (Pratt's method, the default of coin::wilcoxsign_test, would keep the zeros in the ranking and give a
+    // different p; it is not what we implement.)
+    const pre = [149, 0, 0, 259, 106, 255, 0, 52, 340, 65, 180, 0, 84, 89, 212, 554, 500, 424, 112, 2600];
+    const post = [0, 51, 0, 385, 0, 235, 0, 0, 48, 65, 77, 0, 0, 0, 53, 150, 0, 165, 98, 0];
+    const r = wilcoxonSignedRank(pre, post);
+    expect(r).toMatchObject({ n: 16, zeros: 4, ties: false, exact: true, wPlus: 124, wMinus: 12 });
+    expect(Math.abs(r.pTwoSided - 0.002136)).toBeLessThan(5e-7); // printed to 4 significant digits
+    expect(Math.abs(r.pTwoSided - 0.0021)).toBeLessThan(5e-5); // StatXact's 2-digit value
+  });
+
+  it('tied |d| and 26 zero differences, n = 47 ranked: V = 559, exact conditional p = 0.9603', () => {
+    // Source: exactRankTests tests/bugfix-tests.R and its saved R 3.6.0 output tests/bugfix-tests.Rout.save
+    // (data from R. Bellio, 2002): wilcox.exact(x, y, paired=TRUE) -> "Exact Wilcoxon signed rank test ...
+    // V = 559, p-value = 0.9603". wilcox.exact computes the exact distribution conditional on the midranks
+    // (Streitberg-Roehmel algorithm) after dropping zeros, which is our definition; its two-sided p is
+    // P(|V - E V| >= |v - E V|), equal to 2 * min(one-sided) for this symmetric distribution.
+    const x = [0, 87, 0, 0, 0, 0, 8, 0, 16, 0, 64, 0, 0, 37, 200, 0, 0, 32, 5, 0, 0, 14, 0, 0, 4, 0, 0, 50, 0, 0, 99,
+      0, 0, 12, 36, 22, 4, 13, 0, 10, 70, 0, 0, 0, 0, 19, 0, 4, 3, 4, 23, 0, 0, 0, 0, 0, 0, 14, 4, 8, 0, 11, 42, 0, 0,
+      0, 0, 0, 18, 11, 29, 0, 0];
+    const y = [0, 0, 14, 0, 0, 16, 0, 145, 0, 0, 16, 0, 0, 47, 0, 0, 0, 144, 0, 2, 0, 13, 0, 0, 114, 0, 6, 0, 0, 4,
+      9, 0, 0, 17, 0, 0, 42, 0, 0, 0, 0, 0, 0, 0, 25, 0, 1, 178, 0, 0, 0, 6, 0, 7, 76, 252, 0, 0, 23, 0, 0, 68, 0, 0,
+      0, 24, 0, 59, 0, 0, 0, 0, 16];
+    expect(x.length).toBe(73);
+    const r = wilcoxonSignedRank(x, y);
+    expect(r).toMatchObject({ n: 47, zeros: 26, ties: true, exact: true, wPlus: 559 });
+    expect(Math.abs(r.pTwoSided - 0.9603)).toBeLessThan(5e-5);
+  });
+
+  it('small tied examples from the exactRankTests checks: 1..7,7 and 1,1,1', () => {
+    // Source: exactRankTests man/wilcox.exact.Rd, \testonly block: wilcox.exact(1:8)$p.value == 0.0078125,
+    // wilcox.exact(c(1:7, 7))$p.value == 0.0078125 (ties at the top), wilcox.exact(c(1, 1, 1))$p.value == 0.25.
+    for (const d of [[1, 2, 3, 4, 5, 6, 7, 8], [1, 2, 3, 4, 5, 6, 7, 7]]) {
+      const { a, b } = fromDiffs(d);
+      expect(wilcoxonSignedRank(a, b).pTwoSided).toBe(0.0078125);
+    }
+    const { a, b } = fromDiffs([1, 1, 1]);
+    const r = wilcoxonSignedRank(a, b);
+    expect(r.ties).toBe(true);
+    expect(r.wPlus).toBe(6); // three midranks of 2
+    expect(r.pTwoSided).toBe(0.25);
+  });
+
+  it('differs on purpose from SciPy\'s tied example, which used the untied table', () => {
+    // Source: the same SciPy docstring (scipy/stats/_morestats.py, scipy 1.9-1.12 era): d = [-0.025, 0.05, 0.05,
+    // -0.05] with alternative='greater' prints WilcoxonResult(statistic=6.0, pvalue=0.4375). 0.4375 = 7/16 is
+    // P(W+ >= 6) under the UNTIED ranks 1..4 (that SciPy ignored ties in its exact mode). Our p is conditional on
+    // the midranks {1, 3, 3, 3}; hand-worked: W+ >= 6 needs two of the three 3s: {3,3} x3, {1,3,3} x3, {3,3,3},
+    // {1,3,3,3} -> 8 of 16 sign patterns, p = 0.5.
+    const { a, b } = fromDiffs([-0.025, 0.05, 0.05, -0.05]);
+    const r = wilcoxonSignedRank(a, b);
+    expect(r.wPlus).toBe(6);
+    expect(r.ties).toBe(true);
+    expect(r.pGreaterA).toBe(0.5);
+    expect(r.pGreaterA).not.toBe(0.4375);
+  });
+});
+
+describe('Wilcoxon signed-rank: exact distribution up to n = 64', () => {
+  it('exact for every n up to 64 by default; maxExactN is capped at 64', () => {
+    expect(WILCOXON_MAX_EXACT_N).toBe(64);
+    const at64 = dataWithWPlus(64, 1000);
+    expect(wilcoxonSignedRank(at64.a, at64.b).exact).toBe(true);
+    const at65 = dataWithWPlus(65, 1000);
+    expect(wilcoxonSignedRank(at65.a, at65.b).exact).toBe(false);
+    expect(() => wilcoxonSignedRank([1], [2], { maxExactN: 65 })).toThrow(/maxExactN/);
+    expect(() => signedRankNullCounts(Array.from({ length: 65 }, (_, i) => 2 * (i + 1)))).toThrow(/n <= 64/);
+  });
+
+  it('n = 64 untied: every count equals the generating function prod (1 + x^k), k = 1..64, exactly', () => {
+    // Source of the identity: OEIS A226330 (critical values of the Wilcoxon T test), formula line "G.f. for
+    // partitions limited to sample size is product_{r=1..s} (1 + x^r)". Computed here with bigints by forward
+    // polynomial multiplication. The central counts are ~4.9e16 > 2^53, beyond exact double counting.
+    const reference = generatingFunctionCounts(Array.from({ length: 64 }, (_, i) => i + 1));
+    const doubled = Array.from({ length: 64 }, (_, i) => 2 * (i + 1));
+    const exact = signedRankNullCountsExact(doubled);
+    expect(exact.length).toBe(2 * reference.length - 1);
+    for (let w = 0; w < reference.length; w++) {
+      expect(exact[2 * w]).toBe(reference[w]);
+      if (w + 1 < reference.length) expect(exact[2 * w + 1]).toBe(0n);
+    }
+    expect(reference[1040]! > 2n ** 53n).toBe(true); // the regime the old double counts could not hold
+    expect(exact.reduce((s, c) => s + c, 0n)).toBe(2n ** 64n);
+  });
+
+  it('n = 64 untied: probabilities sum to 1, are symmetric, and the extremes are 2^-64', () => {
+    const probs = signedRankNullProbabilities(Array.from({ length: 64 }, (_, i) => 2 * (i + 1)));
+    const total = probs.length - 1; // doubled units: 2 * 2080
+    expect(total).toBe(4160);
+    let sum = 0;
+    for (const p of probs) sum += p;
+    expect(Math.abs(sum - 1)).toBeLessThan(1e-14);
+    for (let s = 0; s <= total; s++) expect(probs[s]).toBe(probs[total - s]);
+    expect(probs[0]).toBe(2 ** -64);
+    expect(probs[2]).toBe(2 ** -64); // W+ = 1: only {1}
+    expect(probs[6]).toBe(2 * 2 ** -64); // W+ = 3: {3} and {1, 2}
+    // All 64 differences favour A: the smallest possible two-sided p, 2 / 2^64.
+    const allA = dataWithWPlus(64, 0);
+    const r = wilcoxonSignedRank(allA.a, allA.b);
+    expect(r.exact).toBe(true);
+    expect(r.pLessA).toBe(2 ** -64);
+    expect(r.pTwoSided).toBe(2 ** -63);
+    expect(r.minAchievableP).toBe(2 ** -63);
+  });
+
+  it('n = 64 untied: tail p-values are the correctly rounded exact bigint ratios', () => {
+    // Independent check with bigint arithmetic: p = sum(counts) / 2^64 rounded once, so equality is required.
+    const reference = generatingFunctionCounts(Array.from({ length: 64 }, (_, i) => i + 1));
+    for (const w of [0, 1, 10, 100, 350, 500, 700, 833, 1000, 1040, 1200, 1500, 2079]) {
+      const { a, b } = dataWithWPlus(64, w);
+      const r = wilcoxonSignedRank(a, b);
+      expect(r.wPlus).toBe(w);
+      expect(r.pLessA, `W+=${w}`).toBe(bigTail(reference, 0, w, 64));
+      expect(r.pGreaterA, `W+=${w}`).toBe(bigTail(reference, w, 2080, 64));
+    }
+  });
+
+  it('n = 64 untied: the tail against the normal approximation, as a published study describes it', () => {
+    // Source: abstract of "Extended Tables of the Wilcoxon Matched Pair Signed Rank Statistic" (tables for
+    // N = 4..100; abstract read at https://paperexplained.cn/articles/paper/detail/b6a7e597e4268e490137cff345423aa86c3bfbb0;
+    // author and journal from memory: R. L. McCornack, JASA 60 (1965), 864-871): "Normal approximation
+    // probabilities were found to be biased, too small at the .05 level but too large at the .005 and .0005
+    // probability levels. Approximation errors were less than 10% for all N > 35 for the .05, .025, and .005
+    // one-tail probability levels". The abstract does not say whether a continuity correction was used, so both
+    // forms are checked at the exact one-tailed critical values for n = 64.
+    const n = 64;
+    const mu = 1040;
+    const sd = Math.sqrt(22360); // n(n+1)(2n+1)/24
+    const probs = signedRankNullProbabilities(Array.from({ length: n }, (_, i) => 2 * (i + 1)));
+    const critical = (level: number): { t: number; p: number } => {
+      let cum = 0;
+      let best = { t: -1, p: 0 };
+      for (let w = 0; 2 * w < probs.length; w++) {
+        cum += probs[2 * w]!;
+        if (cum > level) break;
+        best = { t: w, p: cum };
+      }
+      return best;
+    };
+    for (const level of [0.05, 0.025, 0.005, 0.0005]) {
+      const { t, p } = critical(level);
+      const { a, b } = dataWithWPlus(n, t);
+      expect(wilcoxonSignedRank(a, b).pLessA).toBeCloseTo(p, 15); // p here is a sum of rounded point probabilities
+      for (const cc of [0, 0.5]) {
+        const approx = normalCdf((t - mu + cc) / sd);
+        const rel = (approx - p) / p;
+        if (level === 0.05) expect(rel, `level ${level}, cc ${cc}`).toBeLessThan(0);
+        if (level <= 0.005) expect(rel, `level ${level}, cc ${cc}`).toBeGreaterThan(0);
+        if (level >= 0.005) expect(Math.abs(rel), `level ${level}, cc ${cc}`).toBeLessThan(0.1);
+      }
+    }
+    // And the absolute gap to the continuity-corrected approximation stays small across the body of the
+    // distribution (measured at most 1.21e-3, near W+ = 900); the tolerance guards against a wrong distribution.
+    for (const w of [700, 760, 800, 850, 900, 960, 1000, 1040]) {
+      const { a, b } = dataWithWPlus(n, w);
+      const exact = wilcoxonSignedRank(a, b);
+      expect(Math.abs(exact.pLessA - normalCdf((w - mu + 0.5) / sd)), `W+=${w}`).toBeLessThan(1.5e-3);
+    }
+  });
+
+  it('critical values for n = 6..62 match a published table (OEIS A226330, one-tailed 2.5%)', () => {
+    // Source: OEIS A226330, "Critical values of Wilcoxon T test at a 2.5% level of significance (one-tail test)",
+    // offset 6 (https://oeis.org/A226330), computed after P. Mitic, "Critical Values for the Wilcoxon Signed
+    // Rank Statistic", Mathematica Journal 6(3). Its program returns the largest T with P(W+ <= T) <= 0.025.
+    // n = 51..62 were normal-approximation territory before; n = 6..25 also agree with the York table above.
+    const table = [0, 2, 3, 5, 8, 10, 13, 17, 21, 25, 29, 34, 40, 46, 52, 58, 65, 73, 81, 89, 98, 107, 116,
+      126, 137, 147, 159, 170, 182, 195, 208, 221, 235, 249, 264, 279, 294, 310, 327, 343,
+      361, 378, 396, 415, 434, 453, 473, 494, 514, 536, 557, 579, 602, 625, 648, 672, 697];
+    expect(table.length).toBe(57);
+    table.forEach((t, i) => {
+      const n = 6 + i;
+      const at = dataWithWPlus(n, t);
+      const r = wilcoxonSignedRank(at.a, at.b);
+      expect(r.exact).toBe(true);
+      expect(r.pLessA, `n=${n} T=${t}`).toBeLessThanOrEqual(0.025);
+      const next = dataWithWPlus(n, t + 1);
+      expect(wilcoxonSignedRank(next.a, next.b).pLessA, `n=${n} T+1=${t + 1}`).toBeGreaterThan(0.025);
+    });
+  });
+
+  it('n = 64 all tied: counts are the binomial coefficients C(64, k), exactly', () => {
+    // hand-worked: every |d| equal -> every midrank is 32.5 (doubled 65), so W+ = 32.5 * K with K ~ Bin(64, 1/2).
+    // C(64, 32) = 1832624140942590534 > 2^53.
+    const counts = signedRankNullCountsExact(Array.from({ length: 64 }, () => 65));
+    let c = 1n;
+    for (let k = 0; k <= 64; k++) {
+      expect(counts[65 * k], `k=${k}`).toBe(c);
+      c = (c * BigInt(64 - k)) / BigInt(k + 1);
+    }
+    expect(counts[65 * 32]).toBe(1832624140942590534n);
+    expect(counts.filter((x) => x !== 0n).length).toBe(65);
+    // 40 of 64 positive: pGreaterA = P(K >= 40) from the same binomials.
+    const d = Array.from({ length: 64 }, (_, i) => (i < 40 ? 1 : -1));
+    const { a, b } = fromDiffs(d);
+    const r = wilcoxonSignedRank(a, b);
+    expect(r.wPlus).toBe(40 * 32.5);
+    const binom = generatingFunctionCounts(Array.from({ length: 64 }, () => 1)); // C(64, k) by polynomial product
+    expect(r.pGreaterA).toBe(bigTail(binom, 40, 64, 64));
+    expect(r.pLessA).toBe(bigTail(binom, 0, 40, 64));
+  });
+
+  it('n = 64 with ties: p-values equal the bigint reference and take well under 50 ms', () => {
+    const rng = new Rng(64);
+    for (let trial = 0; trial < 4; trial++) {
+      // Small integer |d| in 1..9: heavy ties, midranks on half-integers.
+      const d = Array.from({ length: 64 }, () => rng.int(1, 9) * (rng.next() < 0.4 ? -1 : 1));
+      const { a, b } = fromDiffs(d);
+      const r = wilcoxonSignedRank(a, b);
+      expect(r.exact).toBe(true);
+      expect(r.ties).toBe(true);
+      const doubled = slowMidranks(d.map(Math.abs)).map((x) => 2 * x);
+      const reference = generatingFunctionCounts(doubled);
+      const plus2 = doubled.reduce((s, x, i) => s + (d[i]! > 0 ? x : 0), 0);
+      expect(r.wPlus * 2).toBe(plus2);
+      expect(r.pLessA).toBe(bigTail(reference, 0, plus2, 64));
+      expect(r.pGreaterA).toBe(bigTail(reference, plus2, reference.length - 1, 64));
+    }
+    // Timing: median of 7 calls (measured about 2 ms on the shared 2-core machine).
+    const d = Array.from({ length: 64 }, (_, i) => ((i * 7) % 5 === 0 ? -1 : 1) * (1 + (i % 9)));
+    const { a, b } = fromDiffs(d);
+    const times: number[] = [];
+    for (let k = 0; k < 7; k++) {
+      const t0 = performance.now();
+      wilcoxonSignedRank(a, b);
+      times.push(performance.now() - t0);
+    }
+    times.sort((p, q) => p - q);
+    expect(times[3]).toBeLessThan(50);
+  });
+
+  it('counts as doubles stay exact up to n = 53 and agree with the bigint counts', () => {
+    const doubled = Array.from({ length: 53 }, (_, i) => 2 * (i + 1));
+    const asNumbers = signedRankNullCounts(doubled);
+    const asBig = signedRankNullCountsExact(doubled);
+    for (let s = 0; s < asBig.length; s++) expect(BigInt(asNumbers[s]!)).toBe(asBig[s]);
+  });
+});
+
+describe('Wilcoxon signed-rank and probability of improvement with failed runs (+Infinity)', () => {
+  it('a failed run ranks above every finite difference, with the sign of the arm that failed', () => {
+    // hand-worked: d = +Inf, -5, -6, -1e300 -> |d| ranks 5:1, 6:2, 1e300:3, Inf:4; W+ = 4, W- = 6.
+    const r = wilcoxonSignedRank([Infinity, 5, 4, 0], [3, 10, 10, 1e300]);
+    expect(r).toMatchObject({ n: 4, zeros: 0, infinite: 1, bothInfinite: 0, wPlus: 4, wMinus: 6, ties: false });
+    // Same ranks as the untied n = 4 table: P(W+ >= 4) = 11/16.
+    expect(r.pGreaterA).toBe(11 / 16);
+  });
+
+  it('several infinite |d| tie among themselves (midranks); both failed is a dropped zero', () => {
+    // hand-worked: pairs (Inf, 1) -> +Inf, (2, Inf) -> -Inf, (11, 10) -> +1, (10, 13) -> -3, (Inf, Inf) -> zero,
+    // (5, 5) -> zero. |d| ranks: 1 -> 1, 3 -> 2, Inf, Inf -> 3.5 each. W+ = 3.5 + 1 = 4.5, W- = 2 + 3.5 = 5.5.
+    // Subset sums of {1, 2, 3.5, 3.5}: 0,1,2,3,3.5,3.5,4.5,4.5,5.5,5.5,6.5,6.5,7,8,9,10 ->
+    // P(W+ <= 4.5) = 8/16, P(W+ >= 4.5) = 10/16, two-sided min(1, 2 * 0.5) = 1.
+    const a = [Infinity, 2, 11, 10, Infinity, 5];
+    const b = [1, Infinity, 10, 13, Infinity, 5];
+    const r = wilcoxonSignedRank(a, b);
+    expect(r).toMatchObject({ n: 4, zeros: 2, bothInfinite: 1, infinite: 2, wPlus: 4.5, wMinus: 5.5, ties: true });
+    expect(r.pLessA).toBe(0.5);
+    expect(r.pGreaterA).toBe(0.625);
+    expect(r.pTwoSided).toBe(1);
+    expect(bruteForceTails([3.5, 3.5, 1, 2], 4.5)).toEqual({ le: 0.5, ge: 0.625 });
+  });
+
+  it('arm A failing on every one of 6 seeds is as significant as 6 seeds can be (for B)', () => {
+    // hand-worked: all d = +Inf, one tie group of 6 midranks 3.5: W+ = 21 is the single most extreme sign pattern.
+    const r = wilcoxonSignedRank(Array.from({ length: 6 }, () => Infinity), [1, 2, 3, 4, 5, 6]);
+    expect(r).toMatchObject({ n: 6, infinite: 6, wPlus: 21, wMinus: 0, ties: true });
+    expect(r.pGreaterA).toBe(1 / 64);
+    expect(r.pTwoSided).toBe(1 / 32);
+    const mirrored = wilcoxonSignedRank([1, 2, 3, 4, 5, 6], Array.from({ length: 6 }, () => Infinity));
+    expect(mirrored.pLessA).toBe(1 / 64);
+    expect(mirrored.wMinus).toBe(21);
+  });
+
+  it('exact p with infinities agrees with brute-force enumeration of the midranks', () => {
+    // independent check: small-integer differences plus random failures on either side, n up to 12.
+    const rng = new Rng(19);
+    for (let trial = 0; trial < 40; trial++) {
+      const m = rng.int(2, 12);
+      const a: number[] = [];
+      const b: number[] = [];
+      for (let i = 0; i < m; i++) {
+        const u = rng.next();
+        a.push(u < 0.15 ? Infinity : 10 + rng.int(0, 3));
+        b.push(u > 0.85 || u < 0.05 ? Infinity : 10 + rng.int(0, 3));
+      }
+      const r = wilcoxonSignedRank(a, b);
+      const d = a.map((x, i) => (x === b[i] ? 0 : x - b[i]!)).filter((x) => x !== 0);
+      expect(r.n).toBe(d.length);
+      if (d.length === 0) continue;
+      const ranks = slowMidranks(d.map(Math.abs));
+      const wPlus = ranks.reduce((s, rank, i) => s + (d[i]! > 0 ? rank : 0), 0);
+      expect(r.wPlus).toBe(wPlus);
+      const tails = bruteForceTails(ranks, wPlus);
+      expect(r.pLessA).toBeCloseTo(tails.le, 14);
+      expect(r.pGreaterA).toBeCloseTo(tails.ge, 14);
+    }
+  });
+
+  it('normal approximation (n > 64) treats the infinite group as one tie group', () => {
+    // hand-worked: 60 finite d = -1..-60 (ranks 1..60) and 10 failures of A (+Inf, ranks 61..70 -> midrank 65.5).
+    // W+ = 655, mu = 70*71/4 = 1242.5, var = 70*71*141/24 - (10^3 - 10)/48.
+    const a = [...Array.from({ length: 60 }, (_, i) => 100 - (i + 1)), ...Array.from({ length: 10 }, () => Infinity)];
+    const b = Array.from({ length: 70 }, () => 100);
+    const r = wilcoxonSignedRank(a, b);
+    expect(r).toMatchObject({ n: 70, infinite: 10, exact: false, wPlus: 655 });
+    const sd = Math.sqrt((70 * 71 * 141) / 24 - 990 / 48);
+    expect(r.pLessA).toBeCloseTo(normalCdf((655 - 1242.5 + 0.5) / sd), 14);
+  });
+
+  it('NaN and -Infinity still throw with a clear message', () => {
+    expect(() => wilcoxonSignedRank([1, NaN], [1, 2])).toThrow(/a\[1\] is NaN/);
+    expect(() => wilcoxonSignedRank([1, 2], [NaN, 2])).toThrow(/b\[0\] is NaN/);
+    expect(() => wilcoxonSignedRank([-Infinity, 2], [1, 2])).toThrow(/a\[0\] is -Infinity.*\+Infinity/);
+    expect(() => wilcoxonSignedRank([1, 2], [1, -Infinity])).toThrow(/b\[1\] is -Infinity/);
+    expect(() => probabilityOfImprovement([1, 2], [-Infinity, 2])).toThrow(/-Infinity/);
+    expect(() => probabilityOfImprovement([NaN], [1])).toThrow(/NaN/);
+  });
+
+  it('probability of improvement: a failed run loses to any finite error; two failures tie', () => {
+    // hand-worked: (Inf vs 2) loss 0, (1 vs Inf) win 1, (Inf vs Inf) tie 0.5, (2 vs 3) win 1 -> 2.5 / 4.
+    expect(probabilityOfImprovement([Infinity, 1, Infinity, 2], [2, Infinity, Infinity, 3])).toBe(0.625);
+    expect(probabilityOfImprovement([2, Infinity, Infinity, 3], [Infinity, 1, Infinity, 2])).toBe(0.375);
+  });
+
+  it('bootstrap functions keep refusing non-finite values; countNonFinite counts them', () => {
+    expect(() => pairedBootstrapDifference([1, Infinity], [1, 2], { rng: new Rng(1) })).toThrow(/Infinity/);
+    expect(() => pairedBootstrapDifference([1, 2], [Infinity, 2], { rng: new Rng(1) })).toThrow(/Infinity/);
+    expect(() => summarize([1, Infinity], new Rng(1))).toThrow(/Infinity/);
+    expect(() => probabilityOfImprovementUnpaired([1, Infinity], [1])).toThrow(/Infinity/);
+    expect(countNonFinite([1, Infinity, NaN, -Infinity, 2])).toBe(3);
+    expect(countNonFinite([0, -1, 1e308])).toBe(0);
+    expect(countNonFinite([])).toBe(0);
   });
 });
 
