@@ -40,20 +40,30 @@ export function renderResults(doc: ResultsDocument): string {
   );
   lines.push(`Metric: ${METRIC_WORDS[comparison.metric] ?? comparison.metric}; mean over seeds [95% bootstrap interval]`);
   lines.push('');
+  lines.push(...renderFit(comparison));
+  lines.push('');
   const arms = spec.arms.map((a) => a.name);
-  const header = ['size', 'depth', 'degree', ...arms, 'gap ' + arms.join('/')];
+  const header = ['size', 'depth', 'degree', ...arms, 'rel. error ' + arms.join('/'), 'constant best/train', 'gap ' + arms.join('/')];
   const rows: string[][] = [header];
   for (const rung of comparison.rungs) {
     rows.push([
       rungLabel(rung) + (rung.inTrainingRange ? '*' : ''),
       num(rung.depthMean, 2),
       num(rung.meanDegree, 2),
-      ...rung.arms.map((a) => (a.summary.n ? `${num(a.summary.mean)} [${num(a.summary.meanLow)}, ${num(a.summary.meanHigh)}]${a.excluded ? ` (${a.excluded} excl.)` : ''}` : 'no runs')),
+      ...rung.arms.map((a) => armCell(a)),
+      rung.arms.map((a) => percent(a.relative)).join('/'),
+      `${num(rung.baseline?.best ?? NaN)}/${num(rung.baseline?.train ?? NaN)}`,
       rung.arms.map((a) => num(a.gap, 2)).join('/'),
     ]);
   }
   lines.push(renderTable(rows));
-  lines.push('* inside the training size range. depth: mean rounds the exact algorithm needs. degree: mean degree. gap: error ÷ in-distribution error.');
+  lines.push(
+    '* inside the training size range. depth: mean rounds the exact algorithm needs. degree: mean degree. rel. error: mean |y − t|/|t|. ' +
+      'constant: error of predicting one number everywhere (best: the optimal constant for that rung; train: the constant fitted on the training graphs); ' +
+      '! marks an arm that does not beat the best constant. gap: error ÷ in-distribution error.',
+  );
+  const useless = comparison.rungs.filter((r) => r.noArmBeatsConstant);
+  if (useless.length) lines.push(`No arm beats the best constant predictor at ${useless.map(rungLabel).join(', ')}: nothing was learned there that a verdict could compare.`);
   lines.push('');
   if (spec.arms.length > 2) {
     lines.push('Ranking per size (lowest error first; intervals overlap = not separated):');
@@ -63,7 +73,9 @@ export function renderResults(doc: ResultsDocument): string {
     }
     lines.push('');
   }
-  const pairRows: string[][] = [['size', 'pair', 'mean diff [95%]', 'P(A<B)', 'signed-rank p', 'verdict']];
+  const adj = comparison.adjustment;
+  const adjLabel = adj ? (adj.method === 'primary' ? `p adj. (primary rung, ${adj.tests} test${adj.tests === 1 ? '' : 's'})` : `p adj. (Holm, ${adj.tests} tests)`) : 'p adj.';
+  const pairRows: string[][] = [['size', 'pair', 'mean diff [95%]', 'P(A<B)', 'signed-rank p', adjLabel, 'verdict']];
   const caveats = new Map<string, Set<string>>();
   for (const rung of comparison.rungs) {
     for (const pair of rung.pairs) {
@@ -74,6 +86,7 @@ export function renderResults(doc: ResultsDocument): string {
         v.n ? `${num(v.meanDiff.estimate)} [${num(v.meanDiff.low)}, ${num(v.meanDiff.high)}]` : '—',
         v.n ? num(v.probabilityOfImprovement, 2) : '—',
         v.n ? num(v.wilcoxon.pTwoSided, 3) : '—',
+        v.n && rung.tested !== false ? num(v.pAdjusted ?? v.wilcoxon.pTwoSided, 3) : '—',
         v.text,
       ]);
       for (const c of v.caveats) {
@@ -105,4 +118,34 @@ export function renderResults(doc: ResultsDocument): string {
   }
   lines.push(`Spec ${doc.specHash} · fingerprint ${doc.fingerprint} · engine ${doc.engine.version} on ${doc.engine.backend} (${doc.engine.threads} thread${doc.engine.threads === 1 ? '' : 's'} per worker)`);
   return lines.join('\n');
+}
+
+function percent(x: number): string {
+  if (Number.isNaN(x)) return '—';
+  if (!Number.isFinite(x)) return '∞';
+  return `${num(100 * x, 2)}%`;
+}
+
+function armCell(a: RungComparison['arms'][number]): string {
+  if (!a.summary.n && !a.nonFinite) return 'no runs';
+  const notes: string[] = [];
+  if (a.nonFinite) notes.push(`${a.nonFinite} blew up`);
+  if (a.excluded) notes.push(`${a.excluded} excl.`);
+  const value = a.summary.n ? `${num(a.summary.mean)} [${num(a.summary.meanLow)}, ${num(a.summary.meanHigh)}]` : '∞';
+  return `${value}${a.beatsConstant === false ? '!' : ''}${notes.length ? ` (${notes.join(', ')})` : ''}`;
+}
+
+/** The fit gate per arm, and what a missed gate means for the verdicts. */
+function renderFit(comparison: ResultsDocument['comparison']): string[] {
+  const fit = comparison.fit ?? [];
+  if (!fit.length) return [];
+  const gate = fit[0]!.gate;
+  const parts = fit.map((f) =>
+    f.fitted === null
+      ? `${f.arm} not run yet`
+      : `${f.arm} ${percent(f.median)} ${f.fitted ? 'fitted' : 'NOT FITTED'} (${f.passing} of ${f.values.length} seeds within)`,
+  );
+  const lines = [`Fit gate: in-distribution relative error on fresh graphs, median over seeds, at most ${percent(gate)}: ${parts.join('; ')}.`];
+  for (const f of fit) if (f.fitted === false) lines.push(`  ${f.message} No verdict calls a winner for it.`);
+  return lines;
 }

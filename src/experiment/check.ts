@@ -40,6 +40,12 @@ export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
   }
   if (new Set(spec.test.sizes).size !== spec.test.sizes.length) problems.push(`test.sizes: sizes must not repeat (got ${JSON.stringify(spec.test.sizes)})`);
   if (new Set(spec.test.weightScales).size !== spec.test.weightScales.length) problems.push(`test.weightScales: scales must not repeat`);
+  const primary = spec.test.primary;
+  if (primary && (!spec.test.sizes.includes(primary.size) || !spec.test.weightScales.includes(primary.scale))) {
+    problems.push(
+      `test.primary: got size ${primary.size} at scale ${primary.scale}, allowed a rung of the ladder (sizes ${spec.test.sizes.join(', ')}; scales ${spec.test.weightScales.join(', ')})`,
+    );
+  }
   const names = new Set<string>();
   spec.arms.forEach((arm, i) => {
     if (names.has(arm.name)) problems.push(`arms[${i}].name: "${arm.name}" is used by another arm; arm names must be unique`);
@@ -56,6 +62,14 @@ export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
     if (arm.model.nodeTransform !== undefined) checkTransforms(`arms[${i}].model.nodeTransform`, arm.model.nodeTransform, task.nodeFeatureNames.length);
     if (arm.model.edgeTransform !== undefined) checkTransforms(`arms[${i}].model.edgeTransform`, arm.model.edgeTransform, task.edgeFeatureNames.length);
   });
+  if (!task.iterate) {
+    // Step-wise supervision fits each step to the exact algorithm's state after that many rounds.
+    const why = `task "${task.id}" has no intermediate states (no per-round exact algorithm), so step-wise supervision cannot be used`;
+    if (spec.budget.stepSupervision && spec.arms.some((arm) => arm.stepSupervision === undefined)) problems.push(`budget.stepSupervision: ${why}`);
+    spec.arms.forEach((arm, i) => {
+      if (arm.stepSupervision) problems.push(`arms[${i}].stepSupervision: ${why}`);
+    });
+  }
   const totalRuns = spec.arms.length * spec.seeds.count;
   if (totalRuns > LIMITS.totalRuns.max) {
     problems.push(`seeds.count: ${spec.arms.length} arms × ${spec.seeds.count} seeds = ${totalRuns} runs, allowed at most ${LIMITS.totalRuns.max}`);

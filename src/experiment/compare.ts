@@ -1,30 +1,60 @@
 /**
  * Per-rung statistics over all finished runs: each arm's summary over seeds,
- * its extrapolation gap, and paired verdicts between arms.
+ * its extrapolation gap and relative error, the trivial baselines, the fit gate
+ * per arm, and paired verdicts between arms with p-values adjusted for the
+ * number of tests.
+ *
+ * Outcomes per run, at a rung: a finite error counts as itself; a run that blew
+ * up (diverged, failed, or a non-finite error) counts as +Infinity, the worst
+ * outcome, so an arm's failures stay in its comparison; a run that was
+ * cancelled or has not run yet is missing.
  */
 import type { ExperimentSpec, MetricName } from './spec.ts';
-import type { RunResult } from './run.ts';
-import { summarize, type Summary } from './statistics.ts';
-import { verdict, type Verdict } from './verdict.ts';
+import { fitGateOf } from './spec.ts';
+import type { RunResult, RungResult } from './run.ts';
+import { mean, quantileSorted, summarize, wilcoxonSignedRank, type Summary } from './statistics.ts';
+import { holmAdjust } from './multiplicity.ts';
+import { verdict, type Adjustment, type Verdict } from './verdict.ts';
 import { Rng } from '../util/rng.ts';
+import type { ConstantBaselines } from '../train/baselines.ts';
 
 export interface ArmRung {
   arm: string;
   armIndex: number;
+  /** Over the finite values only; `nonFinite` counts the runs that blew up. */
   summary: Summary;
   /** Seeds of the values in `summary.values`, same order. */
   seeds: number[];
-  /** Runs not counted: diverged, failed, cancelled, non-finite metric, or not yet run. */
+  /** Runs not counted at all: cancelled or not yet run. */
   excluded: number;
+  /** Why each run of this arm is not in `summary` (excluded, or blew up and ranks worst). */
   excludedReasons: string[];
+  /** Runs that blew up at this rung (diverged, failed, non-finite error): ranked worst in every paired test. */
+  nonFinite: number;
   /** Mean error at this rung divided by mean in-distribution error (1 = no degradation). */
   gap: number;
+  /** Mean over seeds of the relative error (mre) at this rung. */
+  relative: number;
+  /** Mean error below the mean error of the best constant predictor at this rung (false when a run blew up). */
+  beatsConstant: boolean;
+  /** Seeds on which this arm's error is below the best constant's. */
+  constantWins: number;
 }
 
 export interface PairRung {
   a: string;
   b: string;
   verdict: Verdict;
+}
+
+export interface RungBaseline {
+  /** Mean over seeds of the error of the best constant for this rung (an oracle constant from the rung's own targets). */
+  best: number;
+  /** Mean over seeds of the error of the constant fitted on the training graphs. */
+  train: number;
+  /** The same two for the relative error (mre). */
+  bestRelative: number;
+  trainRelative: number;
 }
 
 export interface RungComparison {
@@ -35,10 +65,34 @@ export interface RungComparison {
   depthMean: number;
   meanDegree: number;
   inTrainingRange: boolean;
+  /** True where a primary rung is declared and this is it, or where none is declared (every rung tested). */
+  tested: boolean;
+  baseline: RungBaseline;
+  /** No arm beats the best constant predictor here. */
+  noArmBeatsConstant: boolean;
   arms: ArmRung[];
   pairs: PairRung[];
-  /** Arm names from lowest to highest mean error (arms without values last). */
+  /** Arm names from lowest to highest mean error (arms with blown-up runs or without values last). */
   ranking: string[];
+}
+
+/** The fit gate's outcome for one arm. */
+export interface ArmFit {
+  arm: string;
+  armIndex: number;
+  /** The gate: largest allowed in-distribution relative error. */
+  gate: number;
+  /** Per seed, in-distribution relative error on fresh graphs (+Infinity: the run blew up). */
+  values: number[];
+  seeds: number[];
+  /** Median of `values`; the gate is applied to it. NaN before any run finished. */
+  median: number;
+  /** Seeds whose own error is within the gate. */
+  passing: number;
+  /** null until a run of the arm has finished. */
+  fitted: boolean | null;
+  /** A plain sentence for a missed gate, with the numbers; empty when fitted. */
+  message: string;
 }
 
 export interface Comparison {
@@ -46,6 +100,10 @@ export interface Comparison {
   rungs: RungComparison[];
   /** Counts per status, so exclusions are never silent. */
   statusCounts: Record<string, number>;
+  /** The fit gate per arm: verdicts involving an arm that is not fitted call no winner. */
+  fit: ArmFit[];
+  /** How p-values were adjusted for the number of tests. */
+  adjustment: Adjustment;
 }
 
 /** Which arm pairs get a verdict: all pairs for up to 6 arms, else every arm against the first. */
@@ -63,11 +121,59 @@ export function rungKey(family: string, size: number, scale: number): string {
   return `${family}|${size}|${scale}`;
 }
 
-function metricOf(run: RunResult, key: string, metric: MetricName): number | null {
+/** Statuses whose run counts against its arm as the worst outcome. */
+function blewUp(run: RunResult): boolean {
+  return run.status === 'diverged' || run.status === 'failed';
+}
+
+/** A run's outcome at a rung: a number (+Infinity when it blew up) or null when it is missing. */
+function outcomeAt(run: RunResult | undefined, key: string, metric: MetricName): number | null {
+  if (!run) return null;
+  if (blewUp(run)) return Infinity;
   if (run.status !== 'ok') return null;
   const rung = run.ladder.find((r) => rungKey(r.family, r.size, r.scale) === key);
-  const v = rung?.metrics[metric];
-  return typeof v === 'number' && Number.isFinite(v) ? v : null;
+  if (!rung) return null;
+  const v = rung.metrics[metric];
+  return typeof v === 'number' && Number.isFinite(v) ? v : Infinity;
+}
+
+function median(values: readonly number[]): number {
+  return quantileSorted([...values].sort((p, q) => p - q), 0.5);
+}
+
+function pct(x: number): string {
+  return Number.isFinite(x) ? `${Number((100 * x).toPrecision(2))}%` : 'a blow-up';
+}
+
+/** The fit gate for every arm, from the runs' in-distribution relative error on fresh graphs. */
+export function armFits(spec: ExperimentSpec, runs: readonly RunResult[]): ArmFit[] {
+  const gate = fitGateOf(spec);
+  return spec.arms.map((arm, a) => {
+    const values: number[] = [];
+    const seeds: number[] = [];
+    for (const run of runs) {
+      if (run.armIndex !== a) continue;
+      let v: number | null = null;
+      if (blewUp(run)) v = Infinity;
+      else if (run.status === 'ok' && run.inDistribution) v = Number.isFinite(run.inDistribution.mre) ? run.inDistribution.mre : Infinity;
+      if (v === null) continue;
+      values.push(v);
+      seeds.push(run.seed);
+    }
+    const med = values.length ? median(values) : NaN;
+    const passing = values.filter((v) => v <= gate).length;
+    const fitted = values.length ? med <= gate : null;
+    const message =
+      fitted === false
+        ? `${arm.name} is not fitted: its in-distribution relative error on fresh graphs is ${pct(med)} (median of ${values.length} seeds; ${passing} within the gate), above the fit gate of ${pct(gate)}. Train longer or raise the budget.`
+        : '';
+    return { arm: arm.name, armIndex: a, gate, values, seeds, median: med, passing, fitted, message };
+  });
+}
+
+function meanFinite(values: readonly number[]): number {
+  const finite = values.filter((v) => Number.isFinite(v));
+  return finite.length ? mean(finite) : NaN;
 }
 
 export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): Comparison {
@@ -76,51 +182,88 @@ export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): C
   for (const r of runs) statusCounts[r.status] = (statusCounts[r.status] ?? 0) + 1;
   const expected = spec.seeds.count;
   const family = spec.test.family ?? spec.train.family;
-  const rungs: RungComparison[] = [];
   const seeds = Array.from({ length: spec.seeds.count }, (_, s) => spec.seeds.base + s);
   const statsRng = new Rng(spec.seeds.base).fork('statistics');
+  const fit = armFits(spec, runs);
+  const runOf = (a: number, seed: number) => runs.find((r) => r.armIndex === a && r.seed === seed);
+  const inDistributionMean = spec.arms.map((_, a) =>
+    meanFinite(runs.filter((r) => r.armIndex === a && r.status === 'ok' && r.inDistribution).map((r) => r.inDistribution![metric])),
+  );
+  const primary = spec.test.primary;
+  const pairIndices = comparedPairs(spec.arms.length);
+
+  interface Pending {
+    rung: Omit<RungComparison, 'pairs'>;
+    pairs: Array<{ i: number; j: number; a: number[]; b: number[]; pRaw: number }>;
+  }
+  const pending: Pending[] = [];
   for (const size of spec.test.sizes) {
     for (const scale of spec.test.weightScales) {
       const key = rungKey(family, size, scale);
-      // value[arm][seed]
-      const table = spec.arms.map((_, a) =>
-        seeds.map((seed) => {
-          const run = runs.find((r) => r.armIndex === a && r.seed === seed);
-          return run ? metricOf(run, key, metric) : null;
-        }),
-      );
-      const sample = runs.find((r) => r.status === 'ok' && r.ladder.some((l) => rungKey(l.family, l.size, l.scale) === key));
-      const sampleRung = sample?.ladder.find((l) => rungKey(l.family, l.size, l.scale) === key);
+      // outcome[arm][seed]
+      const table = spec.arms.map((_, a) => seeds.map((seed) => outcomeAt(runOf(a, seed), key, metric)));
+      const rungOf = (run: RunResult | undefined): RungResult | undefined =>
+        run?.status === 'ok' ? run.ladder.find((l) => rungKey(l.family, l.size, l.scale) === key) : undefined;
+      const sampleRung = runs.map(rungOf).find((r) => r !== undefined);
+      // Baselines depend on the seed's graphs only: one per seed, from any arm's run of it.
+      const baselineBySeed = new Map<number, ConstantBaselines>();
+      for (const seed of seeds) {
+        const found = spec.arms.map((_, a) => rungOf(runOf(a, seed))?.baseline).find((x) => x !== undefined);
+        if (found) baselineBySeed.set(seed, found);
+      }
+      const seedBaselines = [...baselineBySeed.values()];
+      const baseline: RungBaseline = {
+        best: meanFinite(seedBaselines.map((b) => b.best[metric])),
+        train: meanFinite(seedBaselines.map((b) => b.train[metric])),
+        bestRelative: meanFinite(seedBaselines.map((b) => b.best.mre)),
+        trainRelative: meanFinite(seedBaselines.map((b) => b.train.mre)),
+      };
       const arms: ArmRung[] = spec.arms.map((arm, a) => {
         const values: number[] = [];
         const valueSeeds: number[] = [];
         const reasons: string[] = [];
+        const relatives: number[] = [];
+        let nonFinite = 0;
+        let missing = 0;
+        let constantWins = 0;
         table[a]!.forEach((v, s) => {
-          if (v !== null) {
-            values.push(v);
-            valueSeeds.push(seeds[s]!);
-          } else {
-            const run = runs.find((r) => r.armIndex === a && r.seed === seeds[s]);
-            reasons.push(run ? `seed ${seeds[s]}: ${run.status}${run.reason ? ` (${run.reason})` : run.status === 'ok' ? ' (non-finite error)' : ''}` : `seed ${seeds[s]}: not run yet`);
+          const seed = seeds[s]!;
+          const run = runOf(a, seed);
+          if (v === null) {
+            missing++;
+            reasons.push(run ? `seed ${seed}: ${run.status}${run.reason ? ` (${run.reason})` : ''}` : `seed ${seed}: not run yet`);
+            return;
           }
+          if (!Number.isFinite(v)) {
+            nonFinite++;
+            reasons.push(`seed ${seed}: ${run!.status === 'ok' ? 'non-finite error' : run!.status}${run!.reason ? ` (${run!.reason})` : ''}; ranked as the worst outcome`);
+            return;
+          }
+          values.push(v);
+          valueSeeds.push(seed);
+          const c = baselineBySeed.get(seed)?.best[metric];
+          if (c !== undefined && v < c) constantWins++;
+          const rel = rungOf(run)?.metrics.mre;
+          if (typeof rel === 'number') relatives.push(rel);
         });
-        const inDist = runs
-          .filter((r) => r.armIndex === a && r.status === 'ok' && r.inDistribution)
-          .map((r) => r.inDistribution![metric])
-          .filter((v) => Number.isFinite(v));
         const summary = summarize(values, statsRng.fork(`arm:${a}:${key}`));
-        const inMean = inDist.length ? inDist.reduce((x, y) => x + y, 0) / inDist.length : NaN;
+        const inMean = inDistributionMean[a]!;
         return {
           arm: arm.name,
           armIndex: a,
           summary,
           seeds: valueSeeds,
-          excluded: expected - values.length,
+          excluded: missing,
           excludedReasons: reasons,
+          nonFinite,
           gap: inMean > 0 ? summary.mean / inMean : NaN,
+          relative: nonFinite > 0 ? Infinity : meanFinite(relatives),
+          beatsConstant: nonFinite === 0 && values.length > 0 && Number.isFinite(baseline.best) && summary.mean < baseline.best,
+          constantWins,
         };
       });
-      const pairs: PairRung[] = comparedPairs(spec.arms.length).map(([i, j]) => {
+      const tested = !primary || (primary.size === size && primary.scale === scale);
+      const pairs = pairIndices.map(([i, j]) => {
         const a: number[] = [];
         const b: number[] = [];
         seeds.forEach((_, s) => {
@@ -131,34 +274,72 @@ export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): C
             b.push(vb);
           }
         });
-        return {
-          a: spec.arms[i]!.name,
-          b: spec.arms[j]!.name,
-          verdict: verdict({
-            a,
-            b,
-            nameA: spec.arms[i]!.name,
-            nameB: spec.arms[j]!.name,
-            failedA: arms[i]!.excluded,
-            failedB: arms[j]!.excluded,
-            rng: statsRng.fork(`pair:${i}:${j}:${key}`),
-          }),
-        };
+        return { i, j, a, b, pRaw: wilcoxonSignedRank(a, b).pTwoSided };
       });
-      rungs.push({
-        family,
-        size,
-        scale,
-        depthMean: sampleRung?.depthMean ?? NaN,
-        meanDegree: sampleRung?.meanDegree ?? NaN,
-        inTrainingRange: family === spec.train.family && scale === 1 && size >= spec.train.sizes[0] && size <= spec.train.sizes[1],
-        arms,
+      pending.push({
+        rung: {
+          family,
+          size,
+          scale,
+          depthMean: sampleRung?.depthMean ?? NaN,
+          meanDegree: sampleRung?.meanDegree ?? NaN,
+          inTrainingRange: family === spec.train.family && scale === 1 && size >= spec.train.sizes[0] && size <= spec.train.sizes[1],
+          tested,
+          baseline,
+          noArmBeatsConstant: arms.every((x) => !x.beatsConstant) && arms.some((x) => x.summary.n > 0 || x.nonFinite > 0),
+          arms,
+          ranking: [...arms]
+            .sort((x, y) => sortKey(x) - sortKey(y))
+            .map((x) => x.arm),
+        },
         pairs,
-        ranking: [...arms]
-          .sort((x, y) => (Number.isNaN(x.summary.mean) ? Infinity : x.summary.mean) - (Number.isNaN(y.summary.mean) ? Infinity : y.summary.mean))
-          .map((x) => x.arm),
       });
     }
   }
-  return { metric, rungs, statusCounts };
+
+  // Every tested (rung, pair) is one test of the family: Holm keeps the chance of any false
+  // "extrapolates better" at alpha however many rungs and pairs a preset has.
+  const family_ = pending.flatMap((p) => (p.rung.tested ? p.pairs : []));
+  const adjusted = holmAdjust(family_.map((t) => t.pRaw));
+  const adjustedOf = new Map(family_.map((t, k) => [t, adjusted[k]!]));
+  const adjustment: Adjustment = { method: primary ? 'primary' : 'holm', tests: family_.length };
+  const notFitted = fit.filter((f) => f.fitted === false);
+
+  const rungs: RungComparison[] = pending.map(({ rung, pairs }) => {
+    const key = rungKey(rung.family, rung.size, rung.scale);
+    return {
+      ...rung,
+      pairs: pairs.map((t) => {
+        const { i, j } = t;
+        const A = rung.arms[i]!;
+        const B = rung.arms[j]!;
+        return {
+          a: A.arm,
+          b: B.arm,
+          verdict: verdict({
+            a: t.a,
+            b: t.b,
+            nameA: A.arm,
+            nameB: B.arm,
+            failedA: A.excluded,
+            failedB: B.excluded,
+            rng: statsRng.fork(`pair:${i}:${j}:${key}`),
+            tested: rung.tested,
+            pAdjusted: adjustedOf.get(t) ?? t.pRaw,
+            adjustment,
+            notFitted: notFitted.filter((f) => f.armIndex === i || f.armIndex === j).map((f) => f.message),
+            beatsConstantA: A.beatsConstant,
+            beatsConstantB: B.beatsConstant,
+            constantError: Number.isFinite(rung.baseline.best) ? rung.baseline.best : undefined,
+          }),
+        };
+      }),
+    };
+  });
+  return { metric, rungs, statusCounts, fit, adjustment };
+}
+
+function sortKey(arm: ArmRung): number {
+  if (arm.nonFinite > 0 || Number.isNaN(arm.summary.mean)) return Infinity;
+  return arm.summary.mean;
 }

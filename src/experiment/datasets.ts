@@ -1,11 +1,12 @@
 /**
- * The graphs of one seed: training pool, in-distribution validation set, and
- * one test set per ladder rung (size × weight scale). They depend only on the
+ * The graphs of one seed: training pool, in-distribution validation set (picks
+ * the kept weights), a fresh in-distribution fit set (judges them), and one test
+ * set per ladder rung (size × weight scale). They depend only on the
  * spec and the seed, never on the arm, so every arm of a seed sees the same
  * graphs (paired comparison). Rungs of the same size share their graphs across
  * weight scales, so a scale shift changes only the values.
  */
-import type { ExperimentSpec } from './spec.ts';
+import { armTraining, type ExperimentSpec } from './spec.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import { buildInstance } from '../tasks/sample.ts';
 import { Rng } from '../util/rng.ts';
@@ -19,16 +20,26 @@ export interface Rung {
 
 export interface SeedData {
   train: TaskInstance[];
+  /** Chooses the kept weights during training. */
   validation: TaskInstance[];
+  /** Fresh graphs of the training sizes that play no part in training or in choosing weights: the fit gate's set. */
+  fit: TaskInstance[];
   rungs: Rung[];
 }
 
-export function makeInstance(spec: ExperimentSpec, familyId: string, nodes: number, scale: number, rng: Rng): TaskInstance {
+/** `roundStates`: also record the exact algorithm's intermediate states (step-wise supervision); draws nothing. */
+export function makeInstance(spec: ExperimentSpec, familyId: string, nodes: number, scale: number, rng: Rng, roundStates = false): TaskInstance {
   return buildInstance(spec.task, familyId, nodes, rng, {
     weightRange: spec.train.weightRange,
     weightScale: scale,
     params: spec.train.familyParams,
+    roundStates,
   }).instance;
+}
+
+/** Whether any arm trains with step-wise supervision (then the training graphs carry their intermediate states). */
+export function usesStepSupervision(spec: ExperimentSpec): boolean {
+  return spec.arms.some((_, i) => armTraining(spec, i).stepSupervision);
 }
 
 export function seedRoot(seed: number): Rng {
@@ -39,16 +50,23 @@ export function makeSeedData(spec: ExperimentSpec, seed: number): SeedData {
   const data = seedRoot(seed).fork('data');
   const [lo, hi] = spec.train.sizes;
   const trainStream = data.fork('train');
+  const withRoundStates = usesStepSupervision(spec);
   const train: TaskInstance[] = [];
   for (let i = 0; i < spec.train.graphs; i++) {
     const r = trainStream.fork(i);
-    train.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r));
+    train.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r, withRoundStates));
   }
   const validationStream = data.fork('validation');
   const validation: TaskInstance[] = [];
   for (let i = 0; i < spec.test.validationGraphs; i++) {
     const r = validationStream.fork(i);
     validation.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r));
+  }
+  const fitStream = data.fork('fit');
+  const fit: TaskInstance[] = [];
+  for (let i = 0; i < (spec.test.fitGraphs ?? spec.test.validationGraphs); i++) {
+    const r = fitStream.fork(i);
+    fit.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r));
   }
   const testFamily = spec.test.family ?? spec.train.family;
   const rungs: Rung[] = [];
@@ -60,5 +78,5 @@ export function makeSeedData(spec: ExperimentSpec, seed: number): SeedData {
       rungs.push({ family: testFamily, size, scale, instances });
     }
   }
-  return { train, validation, rungs };
+  return { train, validation, fit, rungs };
 }

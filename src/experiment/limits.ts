@@ -22,6 +22,9 @@ export const LIMITS = {
   stepJitter: { max: 256 },
   learningRate: { min: 1e-6, max: 10 },
   temperature: { min: 1e-4, max: 100 },
+  sparsity: { max: 1 },
+  /** The fit gate is a relative error. */
+  fitGate: { min: 1e-4, max: 10 },
   textLength: { max: 2000 },
   /** Share links: characters after '#', and bytes after decompression. */
   linkChars: { max: 16_384 },

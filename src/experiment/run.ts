@@ -4,7 +4,7 @@
  * exactly this.
  */
 import type { ExperimentSpec } from './spec.ts';
-import { armModel } from './spec.ts';
+import { armModel, armTraining } from './spec.ts';
 import type { RunPlan } from './plan.ts';
 import { makeSeedData, seedRoot, type SeedData } from './datasets.ts';
 import { getTask } from '../tasks/registry.ts';
@@ -15,6 +15,7 @@ import { train, type TrainProgress } from '../train/trainer.ts';
 import { evaluateSet } from '../train/evaluate.ts';
 import type { Metrics } from '../train/metrics.ts';
 import type { TaskInstance } from '../tasks/types.ts';
+import { constantBaselines, countedTargets, type ConstantBaselines } from '../train/baselines.ts';
 import { unmeasuredResult } from './run-record.ts';
 
 export type RunStatus = 'ok' | 'diverged' | 'failed' | 'cancelled';
@@ -24,6 +25,12 @@ export interface RungResult {
   size: number;
   scale: number;
   metrics: Metrics;
+  /**
+   * The trivial baselines on this rung's graphs (the same for every arm of a seed): the best
+   * constant for the rung and the constant fitted on the training graphs, per metric. Absent in
+   * results recorded before baselines existed.
+   */
+  baseline?: ConstantBaselines;
   /** What actually shifted: propagation depth of the exact algorithm and mean in-degree of message edges. */
   depthMean: number;
   depthMax: number;
@@ -45,7 +52,13 @@ export interface RunResult {
   lossCurve: number[];
   lossEvery: number;
   parameters: number;
+  /**
+   * In-distribution score on fresh graphs of the training sizes that played no part in training
+   * or in choosing the kept weights (the fit gate reads its mre).
+   */
   inDistribution: Metrics | null;
+  /** Score on the validation graphs that chose the kept weights (optimistic; for reference only). */
+  validation?: Metrics | null;
   ladder: RungResult[];
   seconds: number;
 }
@@ -106,12 +119,18 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
   let kept = false;
   try {
     base.parameters = network.params.count();
+    const training = armTraining(spec, plan.armIndex);
     const outcome = train({
       network,
       train: data.train,
       validation: data.validation,
       transforms,
-      budget: { ...spec.budget, learningRate: spec.arms[plan.armIndex]?.learningRate ?? spec.budget.learningRate },
+      budget: spec.budget,
+      learningRate: training.learningRate,
+      schedule: training.schedule,
+      sparsity: training.sparsity,
+      stepSupervision: training.stepSupervision,
+      metric: spec.metric,
       rng: root.fork('training'),
       onProgress: hooks.onProgress,
       shouldStop: hooks.shouldStop,
@@ -134,10 +153,19 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
       base.reason = `stopped at step ${outcome.stepsDone} of ${spec.budget.steps}`;
       return base;
     }
-    base.inDistribution = evaluateSet(network, data.validation, transforms).metrics;
+    base.inDistribution = evaluateSet(network, data.fit, transforms).metrics;
+    base.validation = evaluateSet(network, data.validation, transforms).metrics;
+    const trainTargets = countedTargets(data.train);
     for (const rung of data.rungs) {
       const { metrics } = evaluateSet(network, rung.instances, transforms);
-      base.ladder.push({ family: rung.family, size: rung.size, scale: rung.scale, metrics, ...rungSummary(rung.instances) });
+      base.ladder.push({
+        family: rung.family,
+        size: rung.size,
+        scale: rung.scale,
+        metrics,
+        baseline: constantBaselines(rung.instances, trainTargets),
+        ...rungSummary(rung.instances),
+      });
     }
     if (hooks.keepNetwork) {
       hooks.keepNetwork(network, transforms, data);

@@ -17,6 +17,10 @@ export const TRANSFORMS = ['identity', 'log1p', 'reciprocal', 'inverse-square', 
 export const STEP_RULES = ['nodes', 'fixed', 'proportional', 'until-stable'] as const;
 export const METRICS = ['mae', 'mre', 'miss'] as const;
 export const LOSSES = ['huber', 'mse'] as const;
+export const SCHEDULES = ['constant', 'warmup-cosine'] as const;
+
+/** The fit gate when a preset states none: in-distribution relative error at most 5%. */
+export const DEFAULT_FIT_GATE = 0.05;
 
 const text = (max: number = LIMITS.textLength.max) => z.string().max(max);
 const int = (min: number, max: number) => z.number().int().min(min).max(max);
@@ -105,13 +109,37 @@ export const SWEEP_FIELDS = [
   'edgeTransform',
 ] as const;
 
+/**
+ * Learning-rate schedule. `constant` keeps the rate; `warmup-cosine` rises
+ * linearly from 0 over `warmup` steps, then follows a cosine from the full
+ * rate down to `floor` × rate at the last step.
+ */
+export const scheduleSchema = z
+  .object({
+    kind: z.enum(SCHEDULES),
+    warmup: int(0, LIMITS.trainingSteps.max).default(0),
+    floor: num(0, 1).default(0.05),
+  })
+  .strict();
+
+/** Training switches an arm may set for itself (so their effect can itself be A/B-tested). */
+const trainingSwitches = {
+  /** Overrides budget.learningRate for this arm only (learning-rate studies; deliberately diverging arms in tests). */
+  learningRate: num(LIMITS.learningRate.min, LIMITS.learningRate.max).optional(),
+  /** Overrides budget.schedule. */
+  schedule: scheduleSchema.optional(),
+  /** Overrides budget.sparsity: strength of an L1 penalty on every weight matrix (biases excluded). */
+  sparsity: num(0, LIMITS.sparsity.max).optional(),
+  /** Overrides budget.stepSupervision: the exact algorithm's state after k rounds supervises the decoded state after step k. */
+  stepSupervision: z.boolean().optional(),
+};
+
 export const armSchema = z
   .object({
     name: z.string().min(1).max(40).regex(/^[\p{L}\p{N}_ .,:=+\-()×]+$/u, 'use letters, digits, spaces and _ . , : = + - ( ) ×'),
     note: text(400).optional(),
     model: modelOverrideSchema.default({}),
-    /** Overrides budget.learningRate for this arm only (learning-rate studies; deliberately diverging arms in tests). */
-    learningRate: num(LIMITS.learningRate.min, LIMITS.learningRate.max).optional(),
+    ...trainingSwitches,
   })
   .strict();
 
@@ -144,6 +172,22 @@ export const specSchema = z
         weightScales: z.array(num(LIMITS.weightScale.min, LIMITS.weightScale.max)).min(1).max(8).default([1]),
         graphsPerRung: int(LIMITS.testGraphsPerRung.min, LIMITS.testGraphsPerRung.max).default(16),
         validationGraphs: int(LIMITS.validationGraphs.min, LIMITS.validationGraphs.max).default(32),
+        /**
+         * Fresh in-distribution graphs (training sizes) that score each run for the fit gate; they play
+         * no part in choosing the kept weights. Default: as many as validationGraphs.
+         */
+        fitGraphs: int(LIMITS.validationGraphs.min, LIMITS.validationGraphs.max).optional(),
+        /**
+         * A declared primary rung: only it is tested (its pairs adjusted among themselves), and every
+         * other rung is descriptive. Without it, all (rung, pair) tests are adjusted together (Holm).
+         */
+        primary: z
+          .object({
+            size: int(LIMITS.testNodes.min, LIMITS.testNodes.max),
+            scale: num(LIMITS.weightScale.min, LIMITS.weightScale.max).default(1),
+          })
+          .strict()
+          .optional(),
       })
       .strict(),
     budget: z
@@ -153,8 +197,19 @@ export const specSchema = z
         learningRate: num(LIMITS.learningRate.min, LIMITS.learningRate.max).default(0.003),
         clipNorm: num(1e-3, 1e6).default(1),
         loss: z.enum(LOSSES).default('huber'),
-        /** Validate every k steps and keep the best weights (0: never; keep the last). */
+        /** Validate every k steps and keep the best weights by the preset's metric (0: never; keep the last). */
         validateEvery: int(0, LIMITS.trainingSteps.max).default(50),
+        /** Learning-rate schedule (absent: constant). */
+        schedule: scheduleSchema.optional(),
+        /** L1 penalty strength on every weight matrix (absent: 0). */
+        sparsity: num(0, LIMITS.sparsity.max).optional(),
+        /** Step-wise supervision with the exact algorithm's intermediate states (absent: off). */
+        stepSupervision: z.boolean().optional(),
+        /**
+         * The fit gate: an arm whose in-distribution relative error (median over seeds, on fresh graphs)
+         * exceeds this is "not fitted" and no verdict calls a winner for it. Absent: DEFAULT_FIT_GATE.
+         */
+        fitGate: num(LIMITS.fitGate.min, LIMITS.fitGate.max).optional(),
       })
       .strict()
       .default({ steps: 300, batchGraphs: 16, learningRate: 0.003, clipNorm: 1, loss: 'huber', validateEvery: 50 }),
@@ -197,6 +252,32 @@ export type MessageName = (typeof MESSAGES)[number];
 export type UpdateName = (typeof UPDATES)[number];
 export type TransformName = (typeof TRANSFORMS)[number];
 export type MetricName = (typeof METRICS)[number];
+export type Schedule = z.output<typeof scheduleSchema>;
+export type Budget = ExperimentSpec['budget'];
+
+/** The training switches in force for one arm: the arm's own where it states them, else the budget's. */
+export interface ArmTraining {
+  learningRate: number;
+  schedule: Schedule | null;
+  sparsity: number;
+  stepSupervision: boolean;
+}
+
+export function armTraining(spec: ExperimentSpec, armIndex: number): ArmTraining {
+  const arm = spec.arms[armIndex];
+  if (!arm) throw new Error(`experiment/spec: arm ${armIndex} is out of range 0..${spec.arms.length - 1}`);
+  const b = spec.budget;
+  return {
+    learningRate: arm.learningRate ?? b.learningRate,
+    schedule: arm.schedule ?? b.schedule ?? null,
+    sparsity: arm.sparsity ?? b.sparsity ?? 0,
+    stepSupervision: arm.stepSupervision ?? b.stepSupervision ?? false,
+  };
+}
+
+export function fitGateOf(spec: ExperimentSpec): number {
+  return spec.budget.fitGate ?? DEFAULT_FIT_GATE;
+}
 
 /** A refusal of untrusted input: every problem names its field. */
 export class SpecError extends Error {

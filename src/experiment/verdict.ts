@@ -2,32 +2,35 @@
  * Verdicts: the one-line answer to "does arm A extrapolate better than arm B
  * at this size?", with the evidence and plain-English caveats beside it.
  *
- * Verdict rules (errors: lower is better; a and b are paired per-seed errors):
+ * Verdict rules (errors: lower is better; a and b are paired per-seed errors,
+ * and a run that blew up enters as +Infinity, the worst outcome, never as a gap):
  *
- * 1. Fewer than 2 complete seed pairs -> "too few seeds to tell". A single seed
+ * 1. Fewer than 2 complete seed pairs, or so few that even the most lopsided
+ *    outcome could not be significant after adjustment (the smallest possible
+ *    two-sided exact signed-rank p, 2/2^n, times the number of tests in the
+ *    adjustment family, is >= alpha) -> "too few seeds to tell". A single seed
  *    never gives a verdict.
- * 2. If, with n pairs, even the most lopsided outcome could not be significant
- *    - the smallest possible two-sided exact signed-rank p, 2/2^n, is >= alpha -
- *    -> "too few seeds to tell", with a caveat giving that smallest p and the
- *    number of seeds needed (6 at alpha = 0.05; 5 pairs give at best 0.0625).
- * 3. Otherwise "A extrapolates better" only if ALL of these hold:
- *    - the two-sided Wilcoxon signed-rank p (exact for n <= 50) is < alpha,
- *    - the paired percentile bootstrap interval (level 1 - alpha) of the mean
- *      difference a - b lies entirely below 0,
- *    - the signed-rank sums point the same way (W- > W+, i.e. A's errors are
- *      lower on the larger ranks).
- *    "B extrapolates better" is the mirror image (interval entirely above 0,
- *    W+ > W-).
- * 4. Anything else -> "no clear difference".
+ * 2. A rung outside the declared primary rung -> "descriptive only": its
+ *    numbers are shown but nothing is tested there.
+ * 3. An arm that missed the fit gate -> "not judged: an arm is not fitted":
+ *    a network that has not learned its training distribution says nothing
+ *    about extrapolation.
+ * 4. Otherwise "A extrapolates better" only if ALL of these hold:
+ *    - the multiplicity-adjusted p (Holm across every tested (rung, pair) of
+ *      the preset, or the primary rung's pairs) is < alpha; the raw two-sided
+ *      Wilcoxon signed-rank p (exact for n <= 64) is reported beside it,
+ *    - the signed-rank sums point the same way (W- > W+),
+ *    - when every value is finite, the paired percentile bootstrap interval
+ *      (level 1 - alpha) of the mean difference a - b lies entirely below 0
+ *      (with a blown-up run the mean is infinite and only the ranks speak).
+ *    If the better arm does not beat the best constant predictor at the rung,
+ *    the verdict is "neither beats a constant" instead: being less wrong than
+ *    a useless arm is not extrapolation.
+ *    "B extrapolates better" is the mirror image.
+ * 5. Anything else -> "no clear difference".
  *
- * Pairs whose difference is exactly 0 are dropped from the signed-rank test
- * (so they can only make significance harder) but stay in the bootstrap and the
- * probability of improvement. Caveats are added for: failed or diverged runs
- * left out (with counts per arm), pairs with identical errors, a p-value from
- * the normal approximation instead of the exact distribution, fewer than 10
- * pairs (the percentile bootstrap interval then tends to be too narrow), an
- * interval for the difference wider than the arms' average error, and the
- * test and the interval disagreeing.
+ * Pairs whose difference is exactly 0 (including two blown-up runs) are dropped
+ * from the signed-rank test but stay in the probability of improvement.
  */
 import { Rng } from '../util/rng.ts';
 import {
@@ -41,7 +44,7 @@ import {
   wilcoxonSignedRank,
 } from './statistics.ts';
 
-export type VerdictKind = 'a-better' | 'b-better' | 'no-difference' | 'too-few-seeds';
+export type VerdictKind = 'a-better' | 'b-better' | 'no-difference' | 'too-few-seeds' | 'not-fitted' | 'no-skill' | 'not-tested';
 
 /** The fixed verdict phrases, with A and B standing for the arms. */
 export const VERDICT_WORDS: Readonly<Record<VerdictKind, string>> = {
@@ -49,7 +52,18 @@ export const VERDICT_WORDS: Readonly<Record<VerdictKind, string>> = {
   'b-better': 'B extrapolates better',
   'no-difference': 'no clear difference',
   'too-few-seeds': 'too few seeds to tell',
+  'not-fitted': 'not judged: an arm is not fitted',
+  'no-skill': 'neither beats a constant',
+  'not-tested': 'descriptive only',
 };
+
+/** How the p-values of a preset were adjusted for the number of tests. */
+export interface Adjustment {
+  /** 'holm': Holm–Bonferroni over every tested (rung, pair); 'primary': only the declared primary rung is tested. */
+  method: 'holm' | 'primary';
+  /** Tests in the adjustment family. */
+  tests: number;
+}
 
 export interface VerdictInput {
   /** Per-seed errors of arm A, aligned with `b` by seed; incomplete pairs already removed. */
@@ -60,9 +74,9 @@ export interface VerdictInput {
   nameB?: string;
   /** Significance level (default 0.05). The bootstrap interval uses level 1 - alpha. */
   alpha?: number;
-  /** Runs of A that failed or diverged and were left out (for the caveat). */
+  /** Runs of A left out because they were cancelled or never ran (for the caveat); blown-up runs come in `a` as +Infinity instead. */
   failedA?: number;
-  /** Runs of B that failed or diverged and were left out (for the caveat). */
+  /** Runs of B left out likewise. */
   failedB?: number;
   /**
    * Resampling source; the verdict uses `rng.fork('verdict/bootstrap')` and
@@ -71,6 +85,18 @@ export interface VerdictInput {
   rng?: Rng;
   /** Bootstrap resamples (default 2000). */
   resamples?: number;
+  /** The p-value after multiplicity adjustment; the decision uses it (default: the raw p, one test). */
+  pAdjusted?: number;
+  adjustment?: Adjustment;
+  /** False on a rung that is not the declared primary one: nothing is tested there. */
+  tested?: boolean;
+  /** Arms that missed the fit gate, each with a plain sentence giving the numbers. */
+  notFitted?: string[];
+  /** Whether each arm's mean error at this rung beats the best constant predictor (default true). */
+  beatsConstantA?: boolean;
+  beatsConstantB?: boolean;
+  /** The best constant predictor's mean error at this rung, for the caveat. */
+  constantError?: number;
 }
 
 export interface Verdict {
@@ -86,8 +112,19 @@ export interface Verdict {
   alpha: number;
   meanA: number;
   meanB: number;
-  /** Mean of a - b with its paired percentile bootstrap interval (level 1 - alpha). */
+  /**
+   * Mean of a - b with its paired percentile bootstrap interval (level 1 - alpha); with a
+   * blown-up run the estimate is infinite (or NaN when both arms blew up on different seeds)
+   * and the interval NaN.
+   */
   meanDiff: Interval;
+  /** Raw two-sided signed-rank p (= wilcoxon.pTwoSided) and the adjusted p the decision used. */
+  pRaw: number;
+  pAdjusted: number;
+  adjustment: Adjustment | null;
+  /** Runs of each arm in this pair that blew up and rank as the worst outcome. */
+  nonFiniteA: number;
+  nonFiniteB: number;
   /** Paired P(a_i < b_i), ties counting 1/2. */
   probabilityOfImprovement: number;
   wilcoxon: WilcoxonResult;
@@ -121,44 +158,83 @@ export function verdict(input: VerdictInput): Verdict {
   const n = a.length;
   const rng = (input.rng ?? new Rng(0x5eed)).fork('verdict/bootstrap');
   const wilcoxon = wilcoxonSignedRank(a, b);
-  const meanDiff = pairedBootstrapDifference(a, b, { rng, resamples: input.resamples ?? 2000, level: 1 - alpha });
+  const nonFiniteA = a.filter((x) => !Number.isFinite(x)).length;
+  const nonFiniteB = b.filter((x) => !Number.isFinite(x)).length;
+  const allFinite = nonFiniteA === 0 && nonFiniteB === 0;
+  const meanDiff: Interval = allFinite
+    ? pairedBootstrapDifference(a, b, { rng, resamples: input.resamples ?? 2000, level: 1 - alpha })
+    : { estimate: mean(a.map((x, i) => (x === b[i] ? 0 : x - b[i]!))), low: NaN, high: NaN };
   const meanA = mean(a);
   const meanB = mean(b);
   const poi = probabilityOfImprovement(a, b);
+  const adjustment = input.adjustment ?? null;
+  const tests = adjustment?.tests ?? 1;
+  const pRaw = wilcoxon.pTwoSided;
+  const pAdjusted = input.pAdjusted ?? pRaw;
+  if (!(pAdjusted >= pRaw - 1e-12 && pAdjusted <= 1)) {
+    throw new Error(`experiment/verdict: pAdjusted must lie between the raw p (${pRaw}) and 1 (got ${pAdjusted})`);
+  }
 
   const caveats: string[] = [];
   if (failedA > 0 || failedB > 0) {
     const parts: string[] = [];
     if (failedA > 0) parts.push(`${plural(failedA, 'run', 'runs')} of ${nameA}`);
     if (failedB > 0) parts.push(`${plural(failedB, 'run', 'runs')} of ${nameB}`);
-    caveats.push(`Left out failed or diverged runs: ${parts.join(' and ')}.`);
+    caveats.push(`Left out runs that were cancelled or not run: ${parts.join(' and ')}.`);
+  }
+  if (!allFinite) {
+    const parts: string[] = [];
+    if (nonFiniteA > 0) parts.push(`${plural(nonFiniteA, 'run', 'runs')} of ${nameA}`);
+    if (nonFiniteB > 0) parts.push(`${plural(nonFiniteB, 'run', 'runs')} of ${nameB}`);
+    caveats.push(`${parts.join(' and ')} blew up (diverged, failed or a non-finite error); they count as the worst outcome in the signed-rank test, and the mean difference has no interval.`);
   }
 
-  const needed = seedsNeededForSignificance(alpha);
+  const needed = seedsNeededForSignificance(alpha / tests);
   let kind: VerdictKind;
-  if (n < 2 || minimumTwoSidedP(n) >= alpha) {
+  if (n < 2 || minimumTwoSidedP(n) * tests >= alpha) {
     kind = 'too-few-seeds';
     if (n === 0) {
       caveats.push(`No complete seed pairs; run at least ${needed} seeds.`);
     } else {
       caveats.push(
-        `With ${plural(n, 'pair', 'pairs')} the smallest possible two-sided signed-rank p is ${fmt(minimumTwoSidedP(n))}; run at least ${needed} seeds.`,
+        `With ${plural(n, 'pair', 'pairs')} the smallest possible two-sided signed-rank p is ${fmt(minimumTwoSidedP(n))}${tests > 1 ? `, ${fmt(Math.min(1, minimumTwoSidedP(n) * tests))} after adjusting for ${tests} tests` : ''}; run at least ${needed} seeds.`,
       );
     }
+  } else if (input.tested === false) {
+    kind = 'not-tested';
+  } else if (input.notFitted && input.notFitted.length > 0) {
+    kind = 'not-fitted';
+    caveats.push(...input.notFitted);
   } else {
-    const significant = wilcoxon.pTwoSided < alpha;
-    const below = meanDiff.high < 0;
-    const above = meanDiff.low > 0;
+    const significant = pAdjusted < alpha;
+    const below = allFinite ? meanDiff.high < 0 : true;
+    const above = allFinite ? meanDiff.low > 0 : true;
     if (significant && below && wilcoxon.wMinus > wilcoxon.wPlus) kind = 'a-better';
     else if (significant && above && wilcoxon.wPlus > wilcoxon.wMinus) kind = 'b-better';
     else kind = 'no-difference';
 
-    if (kind === 'no-difference' && (significant || below || above)) {
-      caveats.push('The signed-rank test and the bootstrap interval disagree, so no side is called.');
+    if (kind === 'no-difference' && allFinite && (significant || meanDiff.high < 0 || meanDiff.low > 0)) {
+      caveats.push(
+        significant
+          ? 'The signed-rank test and the bootstrap interval disagree, so no side is called.'
+          : pRaw < alpha
+            ? `The raw signed-rank p (${fmt(pRaw)}) is below ${alpha}, but not after adjusting for ${tests} tests (${fmt(pAdjusted)}).`
+            : 'The bootstrap interval excludes 0 but the signed-rank test is not significant, so no side is called.',
+      );
     }
-    if (n < 10) caveats.push(`With fewer than 10 pairs the bootstrap interval tends to be too narrow.`);
+    const winnerBeatsConstant = kind === 'a-better' ? input.beatsConstantA !== false : kind === 'b-better' ? input.beatsConstantB !== false : true;
+    if (!winnerBeatsConstant) {
+      const winner = kind === 'a-better' ? nameA : nameB;
+      caveats.push(
+        `${winner} has the lower error (adjusted p = ${fmt(pAdjusted)}), but its mean error does not beat the best constant predictor${input.constantError !== undefined ? ` (${fmt(input.constantError)})` : ''}; neither arm has learned this rung.`,
+      );
+      kind = 'no-skill';
+    } else if (input.beatsConstantA === false && input.beatsConstantB === false) {
+      caveats.push(`Neither arm beats the best constant predictor at this rung${input.constantError !== undefined ? ` (${fmt(input.constantError)})` : ''}.`);
+    }
+    if (n < 10 && allFinite) caveats.push(`With fewer than 10 pairs the bootstrap interval tends to be too narrow.`);
     const typical = Math.abs((meanA + meanB) / 2);
-    if (meanDiff.high - meanDiff.low > typical) {
+    if (allFinite && meanDiff.high - meanDiff.low > typical) {
       caveats.push('The interval for the difference is wider than the average error itself; the estimate is rough.');
     }
   }
@@ -172,5 +248,22 @@ export function verdict(input: VerdictInput): Verdict {
 
   const words = VERDICT_WORDS[kind];
   const text = kind === 'a-better' ? `${nameA} extrapolates better` : kind === 'b-better' ? `${nameB} extrapolates better` : words;
-  return { kind, words, text, caveats, n, alpha, meanA, meanB, meanDiff, probabilityOfImprovement: poi, wilcoxon };
+  return {
+    kind,
+    words,
+    text,
+    caveats,
+    n,
+    alpha,
+    meanA,
+    meanB,
+    meanDiff,
+    pRaw,
+    pAdjusted,
+    adjustment,
+    nonFiniteA,
+    nonFiniteB,
+    probabilityOfImprovement: poi,
+    wilcoxon,
+  };
 }

@@ -126,7 +126,7 @@ export class FusedAdam {
   private readonly c1: number;
   private readonly c2: number;
   private readonly eps: number;
-  private readonly nlr: number;
+  private nlr: number;
   /** b1^t and b2^t in float32, as tfjs's accBeta1/accBeta2 variables. */
   private acc1: number;
   private acc2: number;
@@ -141,6 +141,11 @@ export class FusedAdam {
     this.nlr = f32(-learningRate);
     this.acc1 = this.b1;
     this.acc2 = this.b2;
+  }
+
+  /** Change the rate for the following steps (schedules); a constant rate never calls this, so it stays bit-identical to tf.train.adam. */
+  setLearningRate(learningRate: number): void {
+    this.nlr = f32(-learningRate);
   }
 
   /** One step for every variable with its gradient, each gradient first multiplied by `scale`. */

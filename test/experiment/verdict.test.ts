@@ -8,12 +8,15 @@ const A8 = B8.map((x, i) => x - 0.5 - 0.01 * i);
 
 describe('verdict', () => {
   it('keeps the exact verdict phrases', () => {
-    // DESIGN.md "Statistics": the four verdict phrases.
+    // DESIGN.md "Statistics": the four verdict phrases, plus the three refusals to judge.
     expect(VERDICT_WORDS).toEqual({
       'a-better': 'A extrapolates better',
       'b-better': 'B extrapolates better',
       'no-difference': 'no clear difference',
       'too-few-seeds': 'too few seeds to tell',
+      'not-fitted': 'not judged: an arm is not fitted',
+      'no-skill': 'neither beats a constant',
+      'not-tested': 'descriptive only',
     });
   });
 
@@ -96,11 +99,11 @@ describe('verdict', () => {
     expect(v.caveats).not.toContain('With fewer than 10 pairs the bootstrap interval tends to be too narrow.');
   });
 
-  it('caveats mention the counts of failed runs', () => {
+  it('caveats mention the counts of runs left out', () => {
     const v = verdict({ a: A8, b: B8, nameA: 'max', nameB: 'sum', failedA: 2, failedB: 1 });
-    expect(v.caveats).toContain('Left out failed or diverged runs: 2 runs of max and 1 run of sum.');
+    expect(v.caveats).toContain('Left out runs that were cancelled or not run: 2 runs of max and 1 run of sum.');
     const onlyB = verdict({ a: A8, b: B8, nameA: 'max', nameB: 'sum', failedB: 3 });
-    expect(onlyB.caveats).toContain('Left out failed or diverged runs: 3 runs of sum.');
+    expect(onlyB.caveats).toContain('Left out runs that were cancelled or not run: 3 runs of sum.');
     const none = verdict({ a: A8, b: B8 });
     expect(none.caveats.join(' ')).not.toMatch(/failed/);
   });
@@ -135,11 +138,14 @@ describe('verdict', () => {
     expect(withTies.wilcoxon.zeros).toBe(2);
     expect(withTies.caveats).toContain('2 pairs had identical errors and were left out of the signed-rank test.');
     const rng = new Rng(5);
-    const b = Array.from({ length: 60 }, () => 1 + 0.1 * rng.normal());
+    // The exact distribution covers every seed count a preset allows (64); beyond it the normal approximation is flagged.
+    const b = Array.from({ length: 70 }, () => 1 + 0.1 * rng.normal());
     const a = b.map((x) => x - 0.05 + 0.05 * rng.normal());
     const big = verdict({ a, b, resamples: 500 });
     expect(big.wilcoxon.exact).toBe(false);
-    expect(big.caveats).toContain('The p-value uses a normal approximation (60 pairs), not the exact distribution.');
+    expect(big.caveats).toContain('The p-value uses a normal approximation (70 pairs), not the exact distribution.');
+    const sixtyFour = verdict({ a: a.slice(0, 64), b: b.slice(0, 64), resamples: 500 });
+    expect(sixtyFour.wilcoxon.exact).toBe(true);
   });
 
   it('is deterministic and does not advance a supplied rng', () => {
@@ -157,5 +163,69 @@ describe('verdict', () => {
     expect(() => verdict({ a: [1, 2], b: [1, NaN] })).toThrow(/NaN/);
     expect(() => verdict({ a: [1, 2], b: [1, 2], alpha: 0 })).toThrow(/alpha/);
     expect(() => verdict({ a: [1, 2], b: [1, 2], failedA: -1 })).toThrow(/failedA/);
+  });
+
+  describe('gates, baselines, adjustment and blow-ups', () => {
+    // A8 beats B8 on all 8 seeds: raw exact two-sided p = 2/2^8 = 0.0078125 (both extreme sign patterns, common practice).
+    it('decides from the adjusted p and reports both', () => {
+      const raw = verdict({ a: A8, b: B8 });
+      expect(raw.pRaw).toBe(2 / 256);
+      expect(raw.kind).toBe('a-better');
+      const adjusted = verdict({ a: A8, b: B8, pAdjusted: 0.06, adjustment: { method: 'holm', tests: 3 } });
+      expect(adjusted.pRaw).toBe(2 / 256);
+      expect(adjusted.pAdjusted).toBe(0.06);
+      expect(adjusted.kind).toBe('no-difference');
+      expect(adjusted.caveats.join(' ')).toMatch(/not after adjusting for 3 tests/);
+      expect(() => verdict({ a: A8, b: B8, pAdjusted: 0.001 })).toThrow(/pAdjusted/);
+    });
+
+    it('counts the family size when asking whether the seeds could ever suffice', () => {
+      // 6 pairs: smallest p 2/64 = 0.03125 < 0.05 alone, but 0.094 across 3 tests; 7 pairs give 2/128 < 0.05/3.
+      const a6 = A8.slice(0, 6);
+      const b6 = B8.slice(0, 6);
+      expect(verdict({ a: a6, b: b6 }).kind).toBe('a-better');
+      const three = verdict({ a: a6, b: b6, pAdjusted: Math.min(1, 3 * (2 / 64)), adjustment: { method: 'holm', tests: 3 } });
+      expect(three.kind).toBe('too-few-seeds');
+      expect(three.caveats.join(' ')).toMatch(/after adjusting for 3 tests; run at least 7 seeds/);
+    });
+
+    it('calls no winner when an arm is not fitted, and says why', () => {
+      const v = verdict({ a: A8, b: B8, nameA: 'max', nameB: 'sum', notFitted: ['sum is not fitted: 9% above the 5% gate.'] });
+      expect(v.kind).toBe('not-fitted');
+      expect(v.text).toBe('not judged: an arm is not fitted');
+      expect(v.caveats).toContain('sum is not fitted: 9% above the 5% gate.');
+    });
+
+    it('does not crown a winner that a constant predictor beats', () => {
+      const v = verdict({ a: A8, b: B8, nameA: 'max', nameB: 'sum', beatsConstantA: false, beatsConstantB: false, constantError: 0.3 });
+      expect(v.kind).toBe('no-skill');
+      expect(v.caveats.join(' ')).toMatch(/max has the lower error .* does not beat the best constant predictor \(0\.3\)/);
+      const winnerFine = verdict({ a: A8, b: B8, beatsConstantA: true, beatsConstantB: false });
+      expect(winnerFine.kind).toBe('a-better');
+    });
+
+    it('leaves rungs outside the primary one untested', () => {
+      const v = verdict({ a: A8, b: B8, tested: false });
+      expect(v.kind).toBe('not-tested');
+      expect(v.text).toBe('descriptive only');
+    });
+
+    it('ranks a blown-up run as the worst outcome instead of dropping it', () => {
+      // B blows up on 3 seeds: those pairs count for A, so A wins all 8 pairs (p = 2/256) with no interval.
+      const b = B8.map((x, i) => (i < 3 ? Infinity : x));
+      const v = verdict({ a: A8, b, nameA: 'max', nameB: 'sum' });
+      expect(v.nonFiniteB).toBe(3);
+      expect(v.n).toBe(8);
+      expect(v.pRaw).toBe(2 / 256);
+      expect(v.kind).toBe('a-better');
+      expect(v.meanDiff.estimate).toBe(-Infinity);
+      expect(Number.isNaN(v.meanDiff.low)).toBe(true);
+      expect(v.caveats.join(' ')).toMatch(/3 runs of sum blew up .* worst outcome/);
+      // When A is the one that blows up on most seeds, the ranks turn against it.
+      const a = A8.map((x, i) => (i < 6 ? Infinity : x));
+      const w = verdict({ a, b: B8, nameA: 'max', nameB: 'sum' });
+      expect(w.wilcoxon.wPlus).toBeGreaterThan(w.wilcoxon.wMinus);
+      expect(w.kind).not.toBe('a-better');
+    });
   });
 });
