@@ -9,7 +9,8 @@
  *               idempotence              a ⊕ a vs a (`combine`)
  *   update      neutral message          u(h, e) vs h, e the aggregator's neutral element
  *               monoid action law        u(u(h, a), b) vs u(h, a ⊕ b)
- *   network     positive homogeneity     f(λx) vs λ f(x)
+ *   network     positive homogeneity     f(x at weight scale λ) vs λ f(x): the inputs scaled as the task's
+ *                                        weight-scale rung scales them (every raw input when no task is given)
  *               replay matches forward   our step-by-step replay vs network.forward (a canary)
  *   schedule    asynchronous replay      outputs under a random asynchronous schedule vs synchronous
  *               extra synchronous steps  control: synchronous with as many steps as the async nodes got updates
@@ -32,6 +33,7 @@ import { makeBatch, type FeatureTransforms } from '../train/batch.ts';
 import { uploadBatch } from '../train/tensors.ts';
 import { predict } from '../train/evaluate.ts';
 import type { TaskInstance } from '../tasks/types.ts';
+import { rungScaling, scaleLikeRung, scalesEverythingTogether } from '../tasks/rung-scaling.ts';
 import { Rng } from '../util/rng.ts';
 import { processorStates, stepPlan } from './trace.ts';
 
@@ -313,6 +315,16 @@ export interface NetworkAuditOptions {
   graphs?: number;
   /** Input scales for the homogeneity check. */
   scales?: number[];
+  /**
+   * The task the instances come from. When given, the homogeneity check scales
+   * exactly the inputs the task's weight-scale rung scales (`rungScaling` in
+   * tasks/rung-scaling.ts: for weight-carrying tasks the inputs then equal
+   * `buildInstance(..., { weightScale: λ })` on the same graphs bit for bit),
+   * so the row measures the shift the ladder applies. Without it, every raw
+   * input is scaled by λ (pure homogeneity, which is the rung's transformation
+   * only for the tasks whose rung scales every input).
+   */
+  task?: string;
   /** Random asynchronous schedules per batch. */
   schedules?: number;
   /** Chance a node updates at a tick, and that an incoming edge delivers when its node updates. */
@@ -357,7 +369,7 @@ function readRows(t: tf.Tensor): Float32Array {
  * validation set) and the states the network itself produces on them.
  */
 export function auditNetwork(network: MessagePassingNetwork, transforms: FeatureTransforms, instances: readonly TaskInstance[], options: NetworkAuditOptions = {}): AuditRow[] {
-  const { graphs = 16, scales = [0.1, 0.5, 2, 10], schedules = 2, nodeRate = 0.5, edgeRate = 0.5, seed = 1 } = options;
+  const { graphs = 16, scales = [0.1, 0.5, 2, 10], schedules = 2, nodeRate = 0.5, edgeRate = 0.5, seed = 1, task } = options;
   const insts = instances.slice(0, graphs);
   if (insts.length === 0) throw new Error('experiment/audit: auditNetwork needs at least one graph');
   const o = network.options;
@@ -475,31 +487,55 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
     tensors.dispose();
   }
 
-  // ---- positive homogeneity: f(λx) vs λ f(x), per graph and λ: ‖f(λx) − λf(x)‖∞ / ‖λf(x)‖∞
+  rows.push(homogeneityRow(network, transforms, insts, scales, task));
+
+  rows.push(...asynchronousRows(network, transforms, insts, { schedules, nodeRate, edgeRate, rng: rng.fork('async') }));
+  return rows;
+}
+
+/**
+ * Positive homogeneity under the weight-scale shift: per graph and λ,
+ * ‖f(x_λ) − λ f(x)‖∞ / ‖λ f(x)‖∞, where x_λ is the graph's input as the task's
+ * rung ×λ builds it (`task` given) or every raw input times λ (no task). A
+ * promise (float32 rounding) only where the network is homogeneous by
+ * construction and the rung scales every input and the target together;
+ * otherwise the residual is reported, with the reason in the subject or note.
+ */
+function homogeneityRow(network: MessagePassingNetwork, transforms: FeatureTransforms, insts: readonly TaskInstance[], scales: readonly number[], task: string | undefined): AuditRow {
+  const scaling = task === undefined ? null : rungScaling(task);
   const base = predict(network, insts, transforms);
   const homogeneity: number[] = [];
   for (const lambda of scales) {
-    const scaled = predict(network, insts, transforms, { inputScale: lambda });
+    const scaled = scaling
+      ? predict(network, insts.map((inst) => scaleLikeRung(inst, scaling, lambda)), transforms)
+      : predict(network, insts, transforms, { inputScale: lambda });
     scaled.forEach((y, g) => {
       const want = base[g]!.map((v) => v * lambda);
       homogeneity.push(relativeMaxDiff(y, want));
     });
   }
   const breakers = homogeneityBreakers(network, transforms);
-  rows.push(
-    makeRow(
-      'positive homogeneity f(λx) = λf(x)',
-      'network',
-      breakers.length ? `not homogeneous by construction (${breakers.join(', ')})` : 'bias-free, homogeneous by construction',
-      'relative',
-      homogeneity,
-      breakers.length ? { kind: 'report' } : { kind: 'rounding', tol: NETWORK_TOLERANCE },
-      `per graph and λ ∈ {${scales.join(', ')}}: ‖f(λx) − λ f(x)‖∞ / ‖λ f(x)‖∞; every raw input (node and edge) scaled by λ before transforms`,
-    ),
+  const rungMatches = scaling === null || scalesEverythingTogether(scaling);
+  const promise = breakers.length === 0 && rungMatches;
+  const measured = `per graph and λ ∈ {${scales.join(', ')}}: ‖f(x_λ) − λ f(x)‖∞ / ‖λ f(x)‖∞`;
+  let how: string;
+  if (scaling === null) how = 'x_λ = every raw input (node and edge) times λ before transforms (no task given)';
+  else if (rungMatches) how = `x_λ = the inputs as the ${task} weight-scale rung ×λ builds them (every node and edge input times λ; the target scales by λ too)`;
+  else {
+    const powers = (p: readonly number[]) => `[${p.map((x) => (x === 0 ? '1' : x === 1 ? 'λ' : `λ^${x}`)).join(', ')}]`;
+    how =
+      `x_λ = the inputs as the ${task} weight-scale rung ×λ builds them (node inputs × ${powers(scaling.node)}, edge inputs × ${powers(scaling.edge)}, target × ${powers([scaling.target])}): ` +
+      'the rung does not scale every input and the target together, so homogeneity is not what it asks of the network; reported';
+  }
+  return makeRow(
+    'positive homogeneity f(λx) = λf(x)',
+    'network',
+    breakers.length ? `not homogeneous by construction (${breakers.join(', ')})` : 'bias-free, homogeneous by construction',
+    'relative',
+    homogeneity,
+    promise ? { kind: 'rounding', tol: NETWORK_TOLERANCE } : { kind: 'report' },
+    `${measured}; ${how}`,
   );
-
-  rows.push(...asynchronousRows(network, transforms, insts, { schedules, nodeRate, edgeRate, rng: rng.fork('async') }));
-  return rows;
 }
 
 /** Per graph: mean over counted nodes |y − ref| ÷ mean over counted nodes |ref|. */

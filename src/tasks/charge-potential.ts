@@ -15,6 +15,13 @@
  *   caller scales the graph with `scaleWeights`, which scales `points`
  *   positions together with the weights (`scaleShift: 'graph'`); the task does
  *   not apply `options.weightScale` again. Potentials scale by 1 / factor.
+ *   So the shift does not scale all inputs and the target together: at scale c
+ *   the distances (edge input) are c × (up to float rounding of the square
+ *   root), the charges (node input) stay as they are (they are not in distance
+ *   units, and scaling them too would change the physics, V ∝ q / r), and the
+ *   target is 1/c ×. The shift is a degree -1 change in distances, not the
+ *   degree-1 homogeneity a bias-free network has; that is the point of this
+ *   task's scale rungs (does the network learn 1/r?).
  * - Mask: every node counts. depth: 1 (direct summation over neighbours).
  */
 import type Graph from 'graphology';

@@ -1,6 +1,7 @@
 /**
  * Helpers shared by the tasks: node-key checks, message edges, source choice,
- * and the synchronous-round loop used both for `iterate` and for `depth`.
+ * the weight unit of an instance (`medianMagnitude`), and the synchronous-round
+ * loop used both for `iterate` and for `depth`.
  */
 import type Graph from 'graphology';
 import type { Rng } from '../util/rng.ts';
@@ -143,6 +144,22 @@ export function runRounds(initial: number[], step: (state: number[]) => number[]
   let state = initial;
   for (let r = 0; r < rounds; r++) state = step(state);
   return state;
+}
+
+/**
+ * The lower median of |values| (the element at index ⌊(m − 1)/2⌋ of the sorted
+ * magnitudes); 0 for an empty list. Tasks use it as the weight unit of an
+ * instance. Being one of the values themselves (no sum, no division), it
+ * commutes exactly with the scale shift: multiplying every value by c > 0 in
+ * floating point is monotone, so the selected element of the scaled list is
+ * exactly c × the selected element of the original (a mean would not be:
+ * Σ c·w and c·Σ w round differently). Listing every value twice (an undirected
+ * edge as two message edges) leaves the lower median unchanged.
+ */
+export function medianMagnitude(values: readonly number[]): number {
+  if (values.length === 0) return 0;
+  const sorted = values.map((v) => Math.abs(v)).sort((a, b) => a - b);
+  return sorted[(sorted.length - 1) >> 1]!;
 }
 
 /** Per node, 1 where finite, else 0; and the target with non-finite entries replaced by 0. */

@@ -12,12 +12,24 @@
  *   that sum counts them twice (it counts paths, not nodes); the target stays
  *   the true number of reachable nodes, so sum is only approximately aligned
  *   there.
- * - Scale shift: no value-carrying input; targets are scale-invariant
- *   (`scaleShift: 'task'`: nothing to apply).
+ * - Scale shift: weights play no part; the inputs (constant 1s: counts, not
+ *   weight units) and the targets do not change with the weight scale
+ *   (`scaleShift: 'task'`: nothing to apply). Homogeneity is not what the
+ *   shift asks of a network here: the target does not scale.
  * - Mask: every node counts.
- * - depth: synchronous rounds of reach-set propagation until nothing changes =
- *   the largest hop distance from a node to one of its descendants (the height
- *   on a tree).
+ * - depth: the longest path of the structure in edges (the height on a tree),
+ *   which is the number of synchronous rounds the task's recursion
+ *   count(v) = 1 + sum over children of count(child) needs before nothing
+ *   changes: after k rounds it counts the paths of at most k edges, so node v
+ *   settles after exactly height(v) rounds (its longest path down). `iterate`
+ *   (below) runs the same schedule with exact counts and stops changing after
+ *   exactly `depth` rounds. A breadth-first propagation of reach sets would
+ *   settle sooner on a DAG (after the largest fewest-hops distance from a node
+ *   to a descendant; on the dag family about half the longest path, measured
+ *   over 30 graphs: means 3.1 against 5.1 at 8 nodes, 9.0 against 18.8 at 64),
+ *   but only with node identities, to count a shared descendant once; an
+ *   anonymous message-passing network has none, and what it can see of a node
+ *   (its tree of incoming paths) stops growing only after height(v) rounds.
  * Exact solver: `descendantCounts` (a depth-first search from every node).
  */
 import type Graph from 'graphology';
@@ -90,19 +102,73 @@ export function childrenOf(graph: Graph, root = 0): number[][] {
   return children;
 }
 
-/** Reach sets after k rounds: R_0(v) = {v}, R_k(v) = {v} ∪ R_{k-1}(u) over messages u -> v. */
-function reachSizes(n: number, src: number[], dst: number[], rounds: number): { sizes: number[]; stableAfter: number } {
-  let sets: Array<Set<number>> = Array.from({ length: n }, (_, v) => new Set([v]));
-  let stableAfter = 0;
-  for (let r = 1; r <= rounds; r++) {
-    const next = sets.map((s) => new Set(s));
-    for (let e = 0; e < src.length; e++) for (const x of sets[src[e]!]!) next[dst[e]!]!.add(x);
-    const changed = next.some((s, v) => s.size !== sets[v]!.size);
-    sets = next;
-    if (!changed) break;
-    stableAfter = r;
+/** children[parent] from message edges child -> parent. */
+function childrenFromMessages(n: number, src: readonly number[], dst: readonly number[]): number[][] {
+  const children: number[][] = Array.from({ length: n }, () => []);
+  for (let e = 0; e < src.length; e++) {
+    const child = src[e]!;
+    const parent = dst[e]!;
+    if (!Number.isInteger(child) || !Number.isInteger(parent) || child < 0 || child >= n || parent < 0 || parent >= n) {
+      throw new Error(`${WHERE}: message edge ${child} -> ${parent} is out of range 0..${n - 1}`);
+    }
+    children[parent]!.push(child);
   }
-  return { sizes: sets.map((s) => s.size), stableAfter };
+  return children;
+}
+
+/** Parents before children (Kahn's algorithm); throws on a cycle. */
+function topologicalOrder(children: readonly (readonly number[])[]): number[] {
+  const n = children.length;
+  const indegree = new Array<number>(n).fill(0);
+  for (const list of children) for (const c of list) indegree[c]!++;
+  const order: number[] = [];
+  for (let v = 0; v < n; v++) if (indegree[v] === 0) order.push(v);
+  for (let k = 0; k < order.length; k++) for (const c of children[order[k]!]!) if (--indegree[c]! === 0) order.push(c);
+  if (order.length !== n) throw new Error(`${WHERE}: the parent -> child structure has a cycle`);
+  return order;
+}
+
+/**
+ * Height of every node: the longest path down to a descendant, in edges (0 for
+ * a node without children). The largest height is the longest path of the
+ * whole structure, and node v's value under the sum recursion settles after
+ * exactly height(v) rounds.
+ */
+export function heights(children: readonly (readonly number[])[]): number[] {
+  const order = topologicalOrder(children);
+  const height = new Array<number>(children.length).fill(0);
+  for (let k = order.length - 1; k >= 0; k--) {
+    const v = order[k]!;
+    for (const c of children[v]!) height[v] = Math.max(height[v]!, height[c]! + 1);
+  }
+  return height;
+}
+
+/**
+ * Per node v, after k rounds: the number of nodes d reachable from v (v
+ * itself included) all of whose paths from v have at most k edges, i.e. the
+ * descendants the sum recursion has finished counting after k rounds, each
+ * counted once. Longest paths from each node by one pass in topological order.
+ */
+export function settledCounts(children: readonly (readonly number[])[], rounds: number): number[] {
+  checkRounds(rounds, WHERE);
+  const n = children.length;
+  const order = topologicalOrder(children);
+  const position = new Array<number>(n);
+  order.forEach((v, i) => (position[v] = i));
+  const longest = new Array<number>(n);
+  const counts = new Array<number>(n).fill(0);
+  for (let v = 0; v < n; v++) {
+    longest.fill(-1);
+    longest[v] = 0;
+    for (let i = position[v]!; i < n; i++) {
+      const u = order[i]!;
+      if (longest[u]! < 0) continue;
+      if (longest[u]! <= rounds) counts[v]!++;
+      for (const c of children[u]!) longest[c] = Math.max(longest[c]!, longest[u]! + 1);
+    }
+  }
+  return counts;
 }
 
 function instance(graph: Graph, _options: TaskOptions): TaskInstance {
@@ -117,7 +183,7 @@ function instance(graph: Graph, _options: TaskOptions): TaskInstance {
     }
   });
   const target = descendantCounts(children);
-  const { stableAfter } = reachSizes(n, messageSrc, messageDst, n);
+  const depth = heights(children).reduce((a, b) => Math.max(a, b), 0);
   return {
     nodes: n,
     nodeInputs: Array.from({ length: n }, () => [1]),
@@ -126,14 +192,20 @@ function instance(graph: Graph, _options: TaskOptions): TaskInstance {
     edgeInputs: messageSrc.map(() => [1]),
     target,
     mask: new Array<number>(n).fill(1),
-    depth: stableAfter,
+    depth,
     extras: graph.type === 'directed' ? {} : { root: 0 },
   };
 }
 
+/**
+ * After k rounds: `settledCounts` (the node plus its descendants whose every
+ * path from it has at most k edges). On a tree that is the sum recursion
+ * itself (the subtree cut at depth k); on a DAG it never counts a node twice,
+ * ends at the target, and at node v stops changing after exactly height(v)
+ * rounds, so the whole state stops changing after `depth` rounds.
+ */
 function iterate(_graph: Graph, inst: TaskInstance, rounds: number): number[] {
-  checkRounds(rounds, WHERE);
-  return reachSizes(inst.nodes, inst.messageSrc, inst.messageDst, rounds).sizes;
+  return settledCounts(childrenFromMessages(inst.nodes, inst.messageSrc, inst.messageDst), rounds);
 }
 
 export const descendantCount: Task = {

@@ -10,8 +10,18 @@
  *   `options.weightRange`, else the graph's recorded `weightRange`, else the
  *   default [1, 10]) and multiplied by `options.weightScale`. The graph's own
  *   edge weights are not used. Scale shift: applied by the task itself
- *   (`scaleShift: 'task'`); pass the unscaled graph.
- * - Inputs: node [duration]; edge [1]. Messages flow pred -> succ.
+ *   (`scaleShift: 'task'`); pass the unscaled graph. At scale c the durations
+ *   and the edge input are exactly c × their values at scale 1 (same rng) and
+ *   the finish times c × (up to float rounding of the sums): the shift scales
+ *   all inputs and the target together.
+ * - Inputs: node [duration]; edge [medianDuration]. Messages flow pred -> succ.
+ * - Edge input, in duration units: the instance's median duration (lower median
+ *   over its jobs), the same on every edge. It only marks the edge (the
+ *   recursion needs no per-edge value); a constant 1 would do that too, but a
+ *   constant does not scale, acts like a bias, and so breaks the positive
+ *   homogeneity of a bias-free network under the scale shift. Why the median:
+ *   data-derived, about the same at every graph size for a given duration
+ *   range, and, being one of the durations, exactly c × its value at scale 1.
  * - Mask: every node counts (all finish times are finite).
  * - depth: the longest path in edges. Synchronous rounds (`iterate`) are
  *   exact after `depth` rounds whatever the durations; particular durations
@@ -20,7 +30,7 @@
 import type Graph from 'graphology';
 import type { Task, TaskInstance, TaskOptions } from './types.ts';
 import { DEFAULT_WEIGHT_RANGE } from '../graphs/common.ts';
-import { checkNodeKeys, runRounds } from './common.ts';
+import { checkNodeKeys, medianMagnitude, runRounds } from './common.ts';
 
 const WHERE = 'tasks/earliest-finish';
 
@@ -119,12 +129,13 @@ function instance(graph: Graph, options: TaskOptions): TaskInstance {
     messageDst.push(Number(t));
   });
   const schedule = earliestFinish(durations, predecessors);
+  const unit = medianMagnitude(durations);
   return {
     nodes: n,
     nodeInputs: durations.map((d) => [d]),
     messageSrc,
     messageDst,
-    edgeInputs: messageSrc.map(() => [1]),
+    edgeInputs: messageSrc.map(() => [unit]),
     target: schedule.finish,
     mask: new Array<number>(n).fill(1),
     depth: schedule.depth,
@@ -158,7 +169,7 @@ export const earliestFinishTask: Task = {
   alignedAggregator: 'max',
   alignedStructure: 'f(v) = duration(v) + max over predecessors u of f(u) (max-plus, critical path method)',
   nodeFeatureNames: ['duration'],
-  edgeFeatureNames: ['one'],
+  edgeFeatureNames: ['medianDuration'],
   families: ['dag'],
   maskPolicy: 'Every node counts (all finish times are finite).',
   scaleShift: 'task',

@@ -6,8 +6,12 @@
  *   giving them would only add noise the network must learn to ignore).
  * - Source: as `shortest-path` (`options.source`, else drawn from `options.rng`;
  *   node 0 on `dag`).
- * - Scale shift: no value-carrying input, so the target is scale-invariant;
- *   `scaleShift: 'graph'` for uniformity (the caller may scale; nothing changes).
+ * - Scale shift: weights play no part, so neither the inputs (a 0/1 source
+ *   marker and a constant 1 per edge: counts, not weight units) nor the target
+ *   change with the weight scale; `scaleShift: 'graph'` for uniformity (the
+ *   caller may scale; nothing changes). A weight-scale rung is therefore the
+ *   in-distribution rung again, and homogeneity (f(λx) = λ f(x)) is not what
+ *   the shift asks of a network here: the target does not scale.
  * - Unreachable nodes: target 0, mask 0.
  * - depth: the largest hop count (the source's eccentricity) = the number of
  *   breadth-first frontier rounds.

@@ -4,14 +4,31 @@
  * - Target: d(v) = min over paths source -> v of the summed edge weights;
  *   d(source) = 0. Exact solver: synchronous Bellman-Ford (`bellmanFord`),
  *   cross-checked in tests against our `dijkstra` and graphology's.
- * - Inputs: node [isSource]; edge [weight]. Undirected edges give two message
- *   edges; directed edges one (source -> target).
+ * - Inputs: node [nonSourceMedianWeight]; edge [weight]. Undirected edges give
+ *   two message edges; directed edges one (source -> target).
+ * - Node input, in weight units: 0 at the source, and at every other node the
+ *   instance's median edge weight m (lower median of |weight| over the message
+ *   edges; 0 if the graph has no edge). It is Bellman-Ford's initial state,
+ *   d(source) = 0 and d(v) = ∞ elsewhere, with ∞ replaced by a finite value in
+ *   the weights' units that a network can scale up itself (a bias-free encoder
+ *   h = U·x gives 0 at the source and U·m elsewhere, so Bellman-Ford stays
+ *   exactly representable without biases). Why the median: it is data-derived,
+ *   about the same at every graph size for a given weight range (so it does not
+ *   itself shift along the size ladder), and, being one of the weights, it
+ *   scales exactly: at weight scale c the input is exactly c × the input at
+ *   scale 1 (a mean would differ in the last bits). A constant marker (1 at the
+ *   source) would not scale, so a bias-free network, which is positively
+ *   homogeneous only when every input scales, would not be homogeneous under
+ *   the scale shift.
  * - Source: `options.source` when given, else drawn from `options.rng`
  *   (uniform node; on directed graphs uniform among nodes without incoming
  *   edges, i.e. node 0 for `dag`).
  * - Scale shift: weight-carrying task (`scaleShift: 'graph'`). The caller scales
  *   the graph's weights (`scaleWeights`) before `instance()`; the task never
- *   applies `options.weightScale` itself. Distances scale by the same factor.
+ *   applies `options.weightScale` itself. At scale c every input (edge weights
+ *   and the node input) is exactly c × its value at scale 1, and the distances
+ *   are c × (up to float rounding of the sums): the shift scales all inputs and
+ *   the target together.
  * - Unreachable nodes: target 0, mask 0.
  * - depth: the number of synchronous Bellman-Ford rounds after which nothing
  *   changes = the largest, over nodes, of the fewest edges on a shortest path.
@@ -26,6 +43,7 @@ import {
   chooseSource,
   instanceEdges,
   maskNonFinite,
+  medianMagnitude,
   messageEdges,
   roundsToFixedPoint,
   runRounds,
@@ -102,9 +120,10 @@ function instance(graph: Graph, options: TaskOptions): TaskInstance {
   const source = chooseSource(graph, options.rng, WHERE, options.source);
   const { distance, rounds } = bellmanFord(graph, source);
   const { target, mask } = maskNonFinite(distance);
+  const unit = medianMagnitude(edges.weight);
   return {
     nodes: n,
-    nodeInputs: Array.from({ length: n }, (_, i) => [i === source ? 1 : 0]),
+    nodeInputs: Array.from({ length: n }, (_, i) => [i === source ? 0 : unit]),
     messageSrc: edges.src,
     messageDst: edges.dst,
     edgeInputs: edges.weight.map((w) => [w]),
@@ -128,7 +147,7 @@ export const shortestPath: Task = {
   describe: 'Sum of edge weights along the cheapest path from the source node (0 at the source).',
   alignedAggregator: 'min',
   alignedStructure: 'd(v) = min over incoming edges u->v of (d(u) + weight), d(source) = 0 (Bellman-Ford, min-plus)',
-  nodeFeatureNames: ['isSource'],
+  nodeFeatureNames: ['nonSourceMedianWeight'],
   edgeFeatureNames: ['weight'],
   families: ['er', 'geometric', 'grid', 'path', 'tree', 'dag'],
   maskPolicy: 'Nodes the source cannot reach have mask 0 and target 0; every other node, the source included, counts.',

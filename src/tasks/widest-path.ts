@@ -12,10 +12,23 @@
  *   recursion: the same rule b(v) = max over u->v of min(b(u), w) holds at
  *   every node, the source included, and the other targets are unchanged.
  *   A source with no outgoing edge would get mask 0.
- * - Inputs: node [isSource]; edge [weight].
+ * - Inputs: node [sourceWidestEdge]; edge [weight].
+ * - Node input, in weight units: at the source, the weight of its widest
+ *   outgoing (incident) edge, i.e. the value the max-min recursion starts from
+ *   there (round 0 of `iterate`, and the source's target); 0 at every other
+ *   node, standing in for the recursion's -Infinity (with positive weights, 0
+ *   is below every path width, so max(0, width) = width). Why this value: it is
+ *   the algorithm's own initial state in the weights' units, and being one of
+ *   the weights it scales exactly: at weight scale c the input is exactly c ×
+ *   the input at scale 1. A constant marker (1 at the source) would not scale,
+ *   so a bias-free network, positively homogeneous only when every input
+ *   scales, would not be homogeneous under the scale shift. A source without
+ *   outgoing edges gets 0 (and mask 0, see below).
  * - Source: `options.source`, else uniform from `options.rng`.
  * - Scale shift: weight-carrying (`scaleShift: 'graph'`): the caller scales the
- *   weights; targets scale by the same factor.
+ *   weights. At scale c every input (edge weights and the node input) and every
+ *   target is exactly c × its value at scale 1 (bottlenecks are weights, no
+ *   sums): the shift scales all inputs and the target together.
  * - Unreachable nodes: target 0, mask 0 (cannot happen on the connected
  *   undirected families this task accepts).
  * - depth: synchronous max-min rounds until nothing changes.
@@ -95,12 +108,14 @@ function instance(graph: Graph, options: TaskOptions): TaskInstance {
   const n = graph.order;
   const source = chooseSource(graph, options.rng, WHERE, options.source);
   const values = widestPath(graph, source);
-  values[source] = sourceValue(edges, source);
+  const widest = sourceValue(edges, source);
+  values[source] = widest;
+  const marker = Number.isFinite(widest) ? widest : 0;
   const { target, mask } = maskNonFinite(values);
   const { rounds } = roundsToFixedPoint(initial(n, edges, source), (s) => widestRound(n, edges, s), n, WHERE);
   return {
     nodes: n,
-    nodeInputs: Array.from({ length: n }, (_, i) => [i === source ? 1 : 0]),
+    nodeInputs: Array.from({ length: n }, (_, i) => [i === source ? marker : 0]),
     messageSrc: edges.src,
     messageDst: edges.dst,
     edgeInputs: edges.weight.map((w) => [w]),
@@ -126,7 +141,7 @@ export const widestPathTask: Task = {
     'Largest achievable minimum edge weight over paths from the source; at the source, its widest incident edge.',
   alignedAggregator: 'max',
   alignedStructure: 'b(v) = max over incoming edges u->v of min(b(u), weight) (max-min), at every node',
-  nodeFeatureNames: ['isSource'],
+  nodeFeatureNames: ['sourceWidestEdge'],
   edgeFeatureNames: ['weight'],
   families: ['er', 'geometric', 'grid', 'path', 'tree'],
   maskPolicy:

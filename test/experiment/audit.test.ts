@@ -11,8 +11,8 @@ import { modelSchema, type ModelOptions } from '../../src/experiment/spec.ts';
 import type { FeatureTransforms } from '../../src/train/batch.ts';
 import { buildInstance } from '../../src/tasks/sample.ts';
 import type { TaskInstance } from '../../src/tasks/types.ts';
+import { predict } from '../../src/train/evaluate.ts';
 import { Rng } from '../../src/util/rng.ts';
-import { bellmanFordNetwork } from '../helpers.ts';
 
 const identity: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
 
@@ -20,9 +20,47 @@ function model(overrides: Partial<ModelOptions>): ModelOptions {
   return modelSchema.parse({ hidden: 6, steps: { rule: 'nodes', trainJitter: 0 }, ...overrides });
 }
 
-function graphs(count: number, seed: number, nodes = 7): TaskInstance[] {
+function graphs(count: number, seed: number, nodes = 7, weightScale = 1, task = 'shortest-path', family = 'er'): TaskInstance[] {
   const rng = new Rng(seed);
-  return Array.from({ length: count }, (_, i) => buildInstance('shortest-path', 'er', nodes, rng.fork(i)).instance);
+  return Array.from({ length: count }, (_, i) => buildInstance(task, family, nodes, rng.fork(i), { weightScale }).instance);
+}
+
+/**
+ * Bellman-Ford as a bias-free network on shortest-path's inputs (0 at the
+ * source, the median edge weight m elsewhere): encode h = U·x (0 at the source,
+ * U·m "not reached yet" elsewhere), min-plus messages h(u) + w, min
+ * aggregation, update h ⊕ a.
+ */
+function bellmanFordBiasFree(unreached = 1e4): MessagePassingNetwork {
+  const net = new MessagePassingNetwork(model({ hidden: 1, aggregator: 'min', message: 'min-plus', update: 'aggregate', bias: false }), 1, 1, new Rng(1));
+  net.params.set('encode.w', [unreached]);
+  net.params.set('message.semiring', [0]);
+  net.params.set('message.we', [1]);
+  net.params.set('decode.w', [1]);
+  return net;
+}
+
+/** A bias-free (or biased) relu / mlp-message / mlp-update max arm with nonzero update output weights (W2 starts at 0). */
+function maxArm(bias: boolean): MessagePassingNetwork {
+  const net = new MessagePassingNetwork(model({ aggregator: 'max', bias, activation: 'relu', message: 'mlp', update: 'mlp' }), 1, 1, new Rng(2));
+  for (const [name, v] of net.params.vars) {
+    if (/w2/.test(name)) net.params.set(name, Array.from({ length: v.size }, (_, i) => Math.cos(i) * 0.2));
+    if (bias && /\.b/.test(name)) net.params.set(name, Array.from({ length: v.size }, (_, i) => 0.3 * Math.sin(i + 1)));
+  }
+  return net;
+}
+
+/** Worst per-graph ‖f(a_g) − λ f(b_g)‖∞ / ‖λ f(b_g)‖∞, computed directly (not through the audit). */
+function worstDeviation(net: MessagePassingNetwork, scaled: TaskInstance[], base: TaskInstance[], lambda: number): number {
+  const ys = predict(net, scaled, identity);
+  const bs = predict(net, base, identity);
+  let worst = 0;
+  ys.forEach((y, g) => {
+    const want = Array.from(bs[g]!, (v) => v * lambda);
+    const size = Math.max(...want.map(Math.abs), 1e-12);
+    worst = Math.max(worst, ...Array.from(y, (v, i) => Math.abs(v - want[i]!) / size));
+  });
+  return worst;
 }
 
 function row(rows: AuditRow[], check: string): AuditRow {
@@ -124,7 +162,7 @@ describe('network audit', () => {
   });
 
   it('Bellman-Ford as a network: neutral message, monoid action and asynchronous replay all hold (chaotic relaxation; Bertsekas & Tsitsiklis, Parallel and Distributed Computation, 1989, ch. 6)', () => {
-    const net = bellmanFordNetwork();
+    const net = bellmanFordBiasFree();
     const before = tf.memory().numTensors;
     const rows = auditNetwork(net, identity, graphs(6, 9, 9), { schedules: 2 });
     expect(tf.memory().numTensors).toBe(before);
@@ -154,5 +192,80 @@ describe('network audit', () => {
     expect(row(rows, 'asynchronous replay').worst).toBeGreaterThan(1e-3);
     expect(row(rows, 'asynchronous replay').pass).toBeNull();
     sumNet.dispose();
+  });
+});
+
+describe('network audit: homogeneity under the weight-scale rung', () => {
+  it('a bias-free max arm (relu, mlp message, mlp update) on shortest-path is homogeneous under the rung to float32 rounding (ReLU(λx) = λReLU(x), λ > 0; common practice)', () => {
+    const net = maxArm(false);
+    const base = graphs(6, 4);
+    const rows = auditNetwork(net, identity, base, { scales: [2, 10], schedules: 1, task: 'shortest-path' });
+    const h = row(rows, 'positive homogeneity');
+    console.info(`bias-free max arm, shortest-path rung: homogeneity residual mean ${h.mean.toExponential(2)}, worst ${h.worst.toExponential(2)}`);
+    expect(h.samples).toBe(12);
+    expect(h.worst).toBeLessThanOrEqual(1e-5);
+    expect(h.pass).toBe(true);
+    expect(h.note).toMatch(/as the shortest-path weight-scale rung ×λ builds them/);
+    // The audit measures what the ladder does: the same residual from instances built by buildInstance at weight scale λ.
+    for (const lambda of [2, 10]) {
+      const direct = worstDeviation(net, graphs(6, 4, 7, lambda), base, lambda);
+      expect(direct).toBeLessThanOrEqual(1e-5);
+    }
+    // The outputs are not trivially 0 (a zero network would be homogeneous for nothing).
+    expect(Math.max(...predict(net, base, identity).flatMap((y) => Array.from(y, Math.abs)))).toBeGreaterThan(1e-2);
+    net.dispose();
+  });
+
+  it('the same arm with biases is not homogeneous under the rung (reported, no promise)', () => {
+    const net = maxArm(true);
+    const rows = auditNetwork(net, identity, graphs(6, 4), { scales: [2, 10], schedules: 1, task: 'shortest-path' });
+    const h = row(rows, 'positive homogeneity');
+    console.info(`max arm with biases, shortest-path rung: homogeneity residual mean ${h.mean.toExponential(2)}, worst ${h.worst.toExponential(2)}`);
+    expect(h.worst).toBeGreaterThan(1e-3);
+    expect(h.mean).toBeGreaterThan(1e-3);
+    expect(h.pass).toBeNull();
+    expect(h.subject).toMatch(/biases/);
+    net.dispose();
+  });
+
+  it('scaling the weights alone (a node input left unscaled, as the old 0/1 source marker was) breaks homogeneity of the bias-free arm', () => {
+    const net = maxArm(false);
+    const base = graphs(6, 4);
+    const weightsOnly = base.map((inst) => ({ ...inst, edgeInputs: inst.edgeInputs.map((r) => r.map((w) => w * 10)) }));
+    const residual = worstDeviation(net, weightsOnly, base, 10);
+    console.info(`bias-free max arm, edge weights ×10 with node inputs unscaled: worst residual ${residual.toExponential(2)}`);
+    expect(residual).toBeGreaterThan(1e-2);
+    net.dispose();
+  });
+
+  it('Bellman-Ford on the weight-unit inputs needs no bias, so it is homogeneous under the rung too (reported: min-plus messages are not homogeneous for every W)', () => {
+    const net = bellmanFordBiasFree();
+    const base = graphs(4, 9, 9);
+    const rows = auditNetwork(net, identity, base, { scales: [0.5, 2, 10], schedules: 1, task: 'shortest-path' });
+    const h = row(rows, 'positive homogeneity');
+    expect(h.worst).toBeLessThan(1e-6);
+    expect(h.pass).toBeNull();
+    // and it is exact: predictions = Bellman-Ford distances at scale 1 and at scale 10
+    for (const [lambda, insts] of [[1, base], [10, graphs(4, 9, 9, 10)]] as const) {
+      predict(net, insts, identity).forEach((y, g) => insts[g]!.target.forEach((t, v) => expect(y[v]).toBeCloseTo(t, lambda === 1 ? 4 : 3)));
+    }
+    net.dispose();
+  });
+
+  it('where the rung does not scale every input with the target (hop-count: nothing scales) the row only reports, and says why', () => {
+    const net = maxArm(false);
+    const rows = auditNetwork(net, identity, graphs(4, 4, 7, 1, 'hop-count'), { scales: [2, 10], schedules: 1, task: 'hop-count' });
+    const h = row(rows, 'positive homogeneity');
+    expect(h.pass).toBeNull();
+    expect(h.note).toMatch(/does not scale every input and the target together/);
+    // f(x) is unchanged by the rung, so against λ f(x) the residual is |1 − λ| / λ (λ = 2: 0.5, λ = 10: 0.9).
+    expect(h.worst).toBeCloseTo(0.9, 5);
+    net.dispose();
+  });
+
+  it('refuses an unknown task, naming where the error comes from', () => {
+    const net = maxArm(false);
+    expect(() => auditNetwork(net, identity, graphs(2, 4), { scales: [2], schedules: 1, task: 'sorting' })).toThrow("tasks/registry: unknown task 'sorting'");
+    net.dispose();
   });
 });

@@ -57,6 +57,9 @@ describe('earliest-finish against a brute-force recursion on random DAGs', () =>
       expect(inst.depth).toBe(Math.max(...Array.from({ length: n }, (_, v) => L(v))));
       expect(inst.mask.every((m) => m === 1)).toBe(true);
       expect(inst.nodeInputs.map((f) => f[0])).toEqual(d);
+      // Edge input: the lower median duration (by hand: sort, index ⌊(n − 1)/2⌋) on every edge.
+      const median = [...d].sort((a, b) => a - b)[(n - 1) >> 1]!;
+      expect(inst.edgeInputs).toEqual(inst.messageSrc.map(() => [median]));
       // Our order is a valid topological order; so is graphology-dag's (used as an outside check of acyclicity).
       expect(topologicalSort(graph).length).toBe(n);
       // iterate is exact after `depth` rounds. Fewer can suffice for particular

@@ -42,6 +42,8 @@ describe('widest-path against brute force', () => {
         let widestIncident = -Infinity;
         graph.forEachEdge(String(s), (_e, a) => (widestIncident = Math.max(widestIncident, a['weight'] as number)));
         expect(inst.target[s]).toBe(widestIncident);
+        // Node input: the same widest incident weight at the source (the recursion's starting value), 0 elsewhere.
+        expect(inst.nodeInputs).toEqual(Array.from({ length: graph.order }, (_, i) => [i === s ? widestIncident : 0]));
         expect(inst.mask.every((m) => m === 1)).toBe(true);
         // The max-min rule holds at every node, the source included.
         for (let v = 0; v < graph.order; v++) {
