@@ -24,8 +24,10 @@ export function tinySpec(overrides: Partial<SpecInput> = {}): ExperimentSpec {
 }
 
 /**
- * Bellman-Ford as a network: one channel holding the distance estimate, the
- * source encoded as 0 and every other node as `unreached`, min-plus messages
+ * Bellman-Ford as a network: one channel holding the distance estimate. The
+ * shortest-path node input is 0 at the source and a median edge weight (≥ the
+ * smallest weight) elsewhere, so encoding it as unreached × input starts the
+ * source at 0 and every other node at least `unreached` away; min-plus messages
  * d(u) + weightGain·w, min aggregation and the state ⊕ message update.
  * `weightGain` 1 is exact; anything else is a deliberately wrong network.
  */
@@ -37,8 +39,8 @@ export function bellmanFordNetwork(options: { weightGain?: number; unreached?: n
     1,
     new Rng(1),
   );
-  net.params.set('encode.w', [-unreached]);
-  net.params.set('encode.b', [unreached]);
+  net.params.set('encode.w', [unreached]);
+  net.params.set('encode.b', [0]);
   net.params.set('message.semiring', [0]);
   net.params.set('message.we', [weightGain]);
   net.params.set('message.b', [0]);

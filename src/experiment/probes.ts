@@ -407,7 +407,7 @@ export function probeRun(
   const task = getTask(spec.task);
   const audit = [
     ...auditAggregator(model.aggregator, model.aggregatorTemperature, { channels: model.hidden, seed }),
-    ...auditNetwork(network, transforms, data.validation, { graphs: Math.max(graphs, 8), seed }),
+    ...auditNetwork(network, transforms, data.validation, { graphs: Math.max(graphs, 8), seed, task: spec.task }),
   ];
   const probes = [
     scaleProbe(network, transforms, spec, { seed, graphs }),

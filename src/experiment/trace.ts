@@ -106,7 +106,7 @@ export interface AlignmentTrace {
   /** [u, v, w] as in the graph (undirected edges once), weights as the task read them. */
   edges: Array<[number, number, number]>;
   source: number | null;
-  /** Raw node inputs (isSource, durations, charges…), `nodeFeatureNames` order. */
+  /** Raw node inputs (source markers, durations, charges…), `nodeFeatureNames` order. */
   nodeInputs: number[][];
   nodeFeatureNames: string[];
   /** Final exact target and mask (mask 0: excluded from scoring, e.g. unreachable). */
