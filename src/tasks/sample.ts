@@ -32,6 +32,12 @@ export interface BuildOptions {
   params?: Readonly<Record<string, number>>;
   /** Fixed source node for tasks that have one. */
   source?: number;
+  /**
+   * Also record the exact algorithm's state after rounds 1..depth on the
+   * instance (`roundStates`, for step-wise supervision). Draws nothing, so the
+   * graph and the instance are the same with or without it.
+   */
+  roundStates?: boolean;
 }
 
 export interface BuiltInstance {
@@ -69,8 +75,22 @@ export function buildInstance(
   const raw = family.generate({ nodes, weightRange, rng: rng.fork('graph'), params });
   const scaleInGraph = (task.scaleShift ?? 'graph') === 'graph';
   const graph = scaleInGraph && weightScale !== 1 ? scaleWeights(raw, weightScale) : raw;
-  const instance = task.instance(graph, { rng: rng.fork('task'), weightScale, weightRange, source });
+  const built = task.instance(graph, { rng: rng.fork('task'), weightScale, weightRange, source });
+  const instance = options.roundStates ? { ...built, roundStates: roundStatesOf(task, graph, built) } : built;
   return { task, family, graph, instance };
+}
+
+/**
+ * The exact algorithm's per-node state after rounds 1..depth (`task.iterate`):
+ * entry k − 1 holds the state after k rounds, non-finite where not reached yet.
+ * Deterministic (draws nothing). Each round count is computed from scratch, as
+ * `iterate` offers no incremental form: cost grows with depth².
+ */
+export function roundStatesOf(task: Task, graph: Graph, instance: TaskInstance): number[][] {
+  if (!task.iterate) throw new Error(`${WHERE}: task '${task.id}' has no intermediate states (no iterate)`);
+  const states: number[][] = [];
+  for (let k = 1; k <= instance.depth; k++) states.push(task.iterate(graph, instance, k));
+  return states;
 }
 
 export interface SampleOptions extends BuildOptions {

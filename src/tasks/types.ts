@@ -31,6 +31,13 @@ export interface TaskInstance {
   depth: number;
   /** Task-specific extra inputs printed by `farfield sample` (durations, charges, positions...). */
   extras?: Record<string, unknown>;
+  /**
+   * Only when asked for (`buildInstance(..., { roundStates: true })`, used by
+   * step-wise supervision): the exact algorithm's per-node state after rounds
+   * 1..depth (`task.iterate`), `roundStates[k - 1]` after k rounds; non-finite
+   * where not reached yet. Past `depth` the state is the final target.
+   */
+  roundStates?: number[][];
 }
 
 export interface TaskOptions {

@@ -25,6 +25,19 @@ export interface GraphBatch {
   graphOf: Int32Array;
   /** Largest node count among the batch's graphs (drives the step rule). */
   maxNodes: number;
+  /** Step-wise supervision only (`stepTargetsFor`): targets for the decoded state after each step. */
+  stepTargets?: StepTargets;
+}
+
+/**
+ * Per-step targets for steps 1..`steps`, row-major [nodes, steps] (column k − 1
+ * is step k, matching the columns of the concatenated forward trace).
+ */
+export interface StepTargets {
+  steps: number;
+  target: Float32Array;
+  /** 1 where step k is supervised: the node counts (mask 1) and the exact state after k rounds is finite. */
+  mask: Float32Array;
 }
 
 export interface FeatureTransforms {
@@ -83,4 +96,44 @@ export function makeBatch(instances: readonly TaskInstance[], transforms: Featur
     edgeBase += m;
   });
   return { nodes, edges, graphs: instances.length, nodeX, nodeFeatures: nf, edgeX, edgeFeatures: ef, src, dst, target, mask, graphOf, maxNodes };
+}
+
+/**
+ * Step-wise supervision targets for a batch of `instances` (same order as
+ * `makeBatch`), steps 1..`steps`: step k ≤ depth holds the exact algorithm's
+ * state after k rounds (`roundStates`), with mask 0 where that state is not
+ * finite yet or the node's own mask is 0; a step past the instance's depth
+ * holds the final target and mask (the algorithm has reached its fixed point).
+ */
+export function stepTargetsFor(instances: readonly TaskInstance[], steps: number): StepTargets {
+  if (!Number.isInteger(steps) || steps < 0) throw new Error(`train/batch: steps must be an integer >= 0, got ${String(steps)}`);
+  let nodes = 0;
+  for (const inst of instances) nodes += inst.nodes;
+  const target = new Float32Array(nodes * steps);
+  const mask = new Float32Array(nodes * steps);
+  let nodeBase = 0;
+  instances.forEach((inst, g) => {
+    const states = inst.roundStates ?? [];
+    if (inst.roundStates === undefined && inst.depth > 0) {
+      throw new Error(`train/batch: step-wise supervision needs the intermediate states of every training graph; graph ${g} has none (build it with roundStates)`);
+    }
+    for (let k = 1; k <= steps; k++) {
+      const state = k <= states.length ? states[k - 1]! : null;
+      for (let i = 0; i < inst.nodes; i++) {
+        const at = (nodeBase + i) * steps + (k - 1);
+        const counted = inst.mask[i] ?? 0;
+        if (state === null) {
+          target[at] = inst.target[i] ?? 0;
+          mask[at] = counted;
+        } else {
+          const v = state[i] ?? NaN;
+          const reached = Number.isFinite(v) && counted !== 0;
+          target[at] = reached ? v : 0;
+          mask[at] = reached ? counted : 0;
+        }
+      }
+    }
+    nodeBase += inst.nodes;
+  });
+  return { steps, target, mask };
 }
