@@ -143,9 +143,14 @@ function renderFit(comparison: ResultsDocument['comparison']): string[] {
   const parts = fit.map((f) =>
     f.fitted === null
       ? `${f.arm} not run yet`
-      : `${f.arm} ${percent(f.median)} ${f.fitted ? 'fitted' : 'NOT FITTED'} (${f.passing} of ${f.values.length} seeds within)`,
+      : `${f.arm} ${percent(f.median)} ${f.fitted ? 'fitted' : 'NOT FITTED'} (${f.passing} of ${f.values.length} seeds within${gateStepText(f.gateStep)})`,
   );
   const lines = [`Fit gate: in-distribution relative error on fresh graphs, median over seeds, at most ${percent(gate)}: ${parts.join('; ')}.`];
   for (const f of fit) if (f.fitted === false) lines.push(`  ${f.message} No verdict calls a winner for it.`);
   return lines;
+}
+
+function gateStepText(step: number | null | undefined): string {
+  if (step === null || step === undefined || Number.isNaN(step)) return '';
+  return Number.isFinite(step) ? `; validation reached it by step ${Math.round(step)}, median` : '; validation never reached it on half the seeds';
 }

@@ -91,6 +91,12 @@ export interface ArmFit {
   passing: number;
   /** null until a run of the arm has finished. */
   fitted: boolean | null;
+  /**
+   * Median over seeds of the first training step whose validation relative error was within the
+   * gate (+Infinity: some runs never got there; null: no run recorded its validation curve).
+   * How much of the budget reaching the gate took.
+   */
+  gateStep: number | null;
   /** A plain sentence for a missed gate, with the numbers; empty when fitted. */
   message: string;
 }
@@ -137,8 +143,12 @@ function outcomeAt(run: RunResult | undefined, key: string, metric: MetricName):
   return typeof v === 'number' && Number.isFinite(v) ? v : Infinity;
 }
 
+/** Median; +Infinity entries (blown-up runs) sort last and may be the median. */
 function median(values: readonly number[]): number {
-  return quantileSorted([...values].sort((p, q) => p - q), 0.5);
+  const sorted = [...values].sort((p, q) => p - q);
+  const upper = sorted[Math.floor(sorted.length / 2)]!;
+  // Two infinite middle values would interpolate to NaN.
+  return upper === Infinity ? Infinity : quantileSorted(sorted, 0.5);
 }
 
 function pct(x: number): string {
@@ -151,8 +161,10 @@ export function armFits(spec: ExperimentSpec, runs: readonly RunResult[]): ArmFi
   return spec.arms.map((arm, a) => {
     const values: number[] = [];
     const seeds: number[] = [];
+    const reachedAt: number[] = [];
     for (const run of runs) {
       if (run.armIndex !== a) continue;
+      if (run.validationCurve?.length) reachedAt.push(run.validationCurve.find((p) => p.relative <= gate)?.step ?? Infinity);
       let v: number | null = null;
       if (blewUp(run)) v = Infinity;
       else if (run.status === 'ok' && run.inDistribution) v = Number.isFinite(run.inDistribution.mre) ? run.inDistribution.mre : Infinity;
@@ -167,7 +179,8 @@ export function armFits(spec: ExperimentSpec, runs: readonly RunResult[]): ArmFi
       fitted === false
         ? `${arm.name} is not fitted: its in-distribution relative error on fresh graphs is ${pct(med)} (median of ${values.length} seeds; ${passing} within the gate), above the fit gate of ${pct(gate)}. Train longer or raise the budget.`
         : '';
-    return { arm: arm.name, armIndex: a, gate, values, seeds, median: med, passing, fitted, message };
+    const gateStep = reachedAt.length ? median(reachedAt) : null;
+    return { arm: arm.name, armIndex: a, gate, values, seeds, median: med, passing, fitted, gateStep, message };
   });
 }
 

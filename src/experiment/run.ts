@@ -11,7 +11,7 @@ import { getTask } from '../tasks/registry.ts';
 import { MessagePassingNetwork } from '../model/network.ts';
 import { columnStats, transformsFor } from '../model/transforms.ts';
 import type { FeatureTransforms } from '../train/batch.ts';
-import { train, type TrainProgress } from '../train/trainer.ts';
+import { train, type TrainProgress, type ValidationPoint } from '../train/trainer.ts';
 import { evaluateSet } from '../train/evaluate.ts';
 import type { Metrics } from '../train/metrics.ts';
 import type { TaskInstance } from '../tasks/types.ts';
@@ -49,6 +49,8 @@ export interface RunResult {
   lastFiniteLoss?: number | null;
   stepsDone: number;
   keptStep: number;
+  /** Validation checks during training (absent in results recorded before they were kept). */
+  validationCurve?: ValidationPoint[];
   lossCurve: number[];
   lossEvery: number;
   parameters: number;
@@ -138,6 +140,7 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
     Object.assign(base, {
       stepsDone: outcome.stepsDone,
       keptStep: outcome.keptStep,
+      validationCurve: outcome.validationCurve,
       lossCurve: outcome.lossCurve,
       lossEvery: outcome.lossEvery,
       lastFiniteLoss: outcome.lastFiniteLoss,

@@ -35,6 +35,18 @@ export interface TrainOutcome {
   divergedReason?: string;
   /** Step whose weights were kept (best validation), or the last step. */
   keptStep: number;
+  /**
+   * Every validation check: the step, the preset's metric and the relative error on the
+   * validation graphs. Shows when training reached the fit gate, i.e. whether the budget was
+   * long enough (the gate itself is judged on fresh graphs after training).
+   */
+  validationCurve: ValidationPoint[];
+}
+
+export interface ValidationPoint {
+  step: number;
+  value: number;
+  relative: number;
 }
 
 export interface TrainArgs {
@@ -92,7 +104,7 @@ export function train(args: TrainArgs): TrainOutcome {
   const validationNodes = args.validation.reduce((m, inst) => Math.max(m, inst.nodes), 0);
   const validationSteps =
     rule.rule === 'until-stable' ? undefined : Math.min(stepsFor(rule, validationNodes) + rule.trainJitter, rule.cap);
-  const outcome: TrainOutcome = { status: 'ok', stepsDone: 0, lossCurve, lossEvery, lastFiniteLoss: null, keptStep: 0 };
+  const outcome: TrainOutcome = { status: 'ok', stepsDone: 0, lossCurve, lossEvery, lastFiniteLoss: null, keptStep: 0, validationCurve: [] };
 
   const nextBatch = (): TaskInstance[] => {
     const picked: TaskInstance[] = [];
@@ -176,6 +188,7 @@ export function train(args: TrainArgs): TrainOutcome {
         // Score at the most steps training used: the kept weights must stay right when run for
         // longer than the graph needs, since larger test graphs get more steps.
         const { metrics } = evaluateSet(network, args.validation, transforms, { steps: validationSteps });
+        outcome.validationCurve.push({ step, value: metrics[metric], relative: metrics.mre });
         if (metrics[metric] < best.value) {
           best = { value: metrics[metric], step, weights: network.params.snapshot() };
         }

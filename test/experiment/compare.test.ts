@@ -146,4 +146,20 @@ describe('compareRuns', () => {
     expect(fine.rungs[0]!.arms[0]!.constantWins).toBe(SEEDS);
     expect(fine.rungs[0]!.arms[0]!.relative).toBeCloseTo(0.8 / 4, 12);
   });
+
+  it('says when validation reached the gate, and when it never did', () => {
+    const s = spec();
+    const made = runs(s, clearWin).map((r) => ({
+      ...r,
+      validationCurve:
+        r.armIndex === 0
+          ? [{ step: 50, value: 1, relative: 0.2 }, { step: 100, value: 0.1, relative: 0.04 + 0.001 * r.seedIndex }]
+          : [{ step: 50, value: 1, relative: 0.2 }, { step: 100, value: 0.5, relative: r.seedIndex < 5 ? 0.09 : 0.03 }],
+    }));
+    const c = compareRuns(s, made);
+    expect(c.fit[0]!.gateStep).toBe(100);
+    // 5 of 8 runs of sum never reach 5% on validation: the median is infinite.
+    expect(c.fit[1]!.gateStep).toBe(Infinity);
+    expect(compareRuns(s, runs(s, clearWin)).fit[0]!.gateStep).toBeNull();
+  });
 });
