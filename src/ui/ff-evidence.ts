@@ -1,7 +1,8 @@
 /**
- * <ff-evidence>: the answer so far, the figures (extrapolation curves, paired
- * differences, per-seed errors), the verdict table with its caveats, and a
- * marked place for probes. Figures are drawn by src/ui/plots.ts from the
+ * <ff-evidence>: the answer so far, the fit gate per arm, the figures
+ * (extrapolation curves with the constant baselines, paired differences,
+ * per-seed errors), the verdict table with its caveats, and a marked place for
+ * probes. Figures are drawn by src/ui/plots.ts from the
  * evidence rows; this element only decides their width.
  */
 import { LitElement, css, html, nothing, type PropertyValues } from 'lit';
@@ -11,8 +12,14 @@ import { num } from './format.ts';
 import { controls } from './styles.ts';
 import './ff-figure.ts';
 import './ff-verdict-table.ts';
+import './ff-fit-gate.ts';
 import './ff-probes.ts';
 import { WidthTracker } from './width-tracker.ts';
+
+/** Something to show: a finished arm at some size, or a run that blew up (which must never vanish). */
+function hasEvidence(view: EvidenceView): boolean {
+  return view.curves.length > 0 || view.blownUp.length > 0;
+}
 
 export class FfEvidence extends LitElement {
   static override properties = {
@@ -81,8 +88,18 @@ export class FfEvidence extends LitElement {
         font-family: var(--mono);
         letter-spacing: 0.04em;
       }
-      .answer[data-kind='too-few-seeds'] .text {
+      .answer[data-kind='too-few-seeds'] .text,
+      .answer[data-kind='not-fitted'] .text,
+      .answer[data-kind='no-skill'] .text,
+      .answer[data-kind='not-tested'] .text {
         color: #f3d28b;
+      }
+      .answer .mark {
+        margin-right: 0.35em;
+      }
+      .answer .reason {
+        font-size: 1em;
+        line-height: 1.45;
       }
       .legend {
         display: flex;
@@ -115,6 +132,15 @@ export class FfEvidence extends LitElement {
         height: 0.9em;
         background: #e3d8bf;
         display: inline-block;
+      }
+      .legend .ref {
+        display: inline-flex;
+        align-items: center;
+        gap: 0.4em;
+        color: var(--muted);
+      }
+      .legend .ref svg {
+        flex: none;
       }
       .legend label {
         margin-left: auto;
@@ -171,7 +197,7 @@ export class FfEvidence extends LitElement {
   protected override willUpdate(changed: PropertyValues<this>): void {
     if (changed.has('evidence') || changed.has('width') || changed.has('logY') || changed.has('presenter')) {
       const view = this.evidence;
-      if (!view || view.curves.length === 0) {
+      if (!view || !hasEvidence(view)) {
         this.generation++;
         this.figures = { curves: null, diffs: null, seeds: null };
         return;
@@ -209,7 +235,7 @@ export class FfEvidence extends LitElement {
 
   override render() {
     const v = this.evidence;
-    if (!v || v.curves.length === 0) {
+    if (!v || !hasEvidence(v)) {
       return html`<div class="empty" data-empty>
           No evidence yet. Press <strong>Run</strong>: as each run finishes, its errors on the ladder appear here — curves with 95% intervals, the paired
           difference between arms, every seed's error, and a verdict with its caveats.
@@ -217,18 +243,28 @@ export class FfEvidence extends LitElement {
         ${this.probes()}`;
     }
     const h = v.headline;
+    const mark = h?.kind === 'not-fitted' || h?.kind === 'no-skill' ? '⚠' : h?.kind === 'not-tested' ? '○' : '';
+    const hasBaselines = v.baselines.some((b) => Number.isFinite(b.best));
+    const refKey = (dash: string, label: string) =>
+      html`<span class="ref"
+        ><svg width="30" height="10" viewBox="0 0 30 10" aria-hidden="true"><line x1="1" y1="5" x2="29" y2="5" stroke="currentColor" stroke-width="2" stroke-dasharray=${dash} /></svg
+        >${label}</span
+      >`;
     return html`${h
-        ? html`<div class="answer" data-kind=${h.kind} data-headline>
+        ? html`<div class="answer" data-kind=${h.kind} data-headline data-winner=${h.winner ?? ''}>
             <span class="a">Answer so far</span>
-            <span class="text">At n = ${h.size}${h.scale !== 1 ? ` (weights ×${h.scale})` : ''}: ${h.text}</span>
-            <span class="sub">${h.pair} on the farthest rung (depth ${num(h.depthMean, 2)}); ${h.detail}.</span>
+            <span class="text">${mark ? html`<span class="mark" aria-hidden="true">${mark}</span>` : nothing}${h.lead}</span>
+            ${h.reason ? html`<span class="reason" data-reason>${h.reason}</span>` : nothing}
+            <span class="sub">${h.pair} on ${h.where} (depth ${num(h.depthMean, 2)}); ${h.detail}.</span>
             ${v.complete ? html`<span class="fp">All ${v.runsExpected} runs in · results fingerprint <code>${v.fingerprint}</code></span>` : nothing}
           </div>`
         : nothing}
       ${v.complete ? nothing : html`<p class="partial">Partial evidence: ${v.runsDone} of ${v.runsExpected} runs in. Verdicts use complete seed pairs only.</p>`}
+      <ff-fit-gate .gates=${v.gates} note=${v.gateNote}></ff-fit-gate>
       <div class="legend" role="group" aria-label="Legend">
         ${v.arms.map((a) => html`<span class="key"><span class="swatch" style=${`--c: ${a.color}`}></span>${a.name}</span>`)}
         <span class="train"><i></i>training sizes ${v.trainSizes[0]}–${v.trainSizes[1]} (◇ in-distribution error)</span>
+        ${hasBaselines ? html`${refKey('7 4', 'best constant')}${refKey('2 3', 'training constant')}` : nothing}
         <label><input type="checkbox" .checked=${this.logY} @change=${(e: Event) => (this.logY = (e.target as HTMLInputElement).checked)} aria-label="Log scale for errors" />log scale</label>
       </div>
       <div class="figs">
@@ -237,7 +273,7 @@ export class FfEvidence extends LitElement {
           heading="Extrapolation: error against test size"
           name="curves"
           .figure=${this.figures.curves}
-          caption=${`Per arm, the mean over seeds of the ${v.metricLabel}, with a 95% bootstrap interval; ◇ marks the error on held-out graphs of the training sizes. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
+          caption=${`Per arm, the mean over seeds of the ${v.metricLabel}, with a 95% bootstrap interval; ◇ marks the error on fresh graphs of the training sizes (not the graphs that chose the kept weights). Grey reference lines: the error of predicting one number for every node — the best such number for each size (long dashes) and the number fitted on the training graphs (short dashes); an arm on or above the long-dashed line has learned nothing usable there. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
         ></ff-figure>
         <div class=${this.sideBySide() ? 'pair' : 'pair single'}>
           ${v.diffs.length
@@ -254,10 +290,19 @@ export class FfEvidence extends LitElement {
             heading="Every seed"
             name="seeds"
             .figure=${this.figures.seeds}
-            caption="Each dot is one trained network; lines join the arms of the same seed, so crossing lines mean the seeds disagree."
+            caption=${`Each dot is one trained network; lines join the arms of the same seed, so crossing lines mean the seeds disagree.${v.blownUp.length ? ' × at the top: runs that blew up (diverged, failed or a non-finite error); each counts as the worst outcome in the paired tests.' : ''}`}
           ></ff-figure>
         </div>
-        <ff-verdict-table .verdicts=${v.verdicts} .rankings=${v.rankings} .caveats=${v.caveats} .failures=${v.failures} .arms=${v.arms} metric=${v.metric}></ff-verdict-table>
+        <ff-verdict-table
+          .verdicts=${v.verdicts}
+          .rankings=${v.rankings}
+          .caveats=${v.caveats}
+          .failures=${v.failures}
+          .arms=${v.arms}
+          .adjustment=${v.adjustment}
+          .noSkill=${v.noSkill}
+          metric=${v.metric}
+        ></ff-verdict-table>
       </div>
       ${this.probes()}`;
   }

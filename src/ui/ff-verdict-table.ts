@@ -1,12 +1,16 @@
 /**
  * <ff-verdict-table>: per rung of the ladder, what actually shifted (depth,
- * degree) next to the node count, each arm pair's paired difference, the
- * probability of improvement, the signed-rank p and the verdict; the caveats
- * underneath, "too few seeds to tell" first.
+ * degree) next to the node count, the best constant predictor's error, each
+ * arm pair's errors (with relative error, a "!" where an arm does not beat the
+ * constant, and runs that blew up), the paired difference, the probability of
+ * improvement, the raw and the adjusted signed-rank p and the verdict; the
+ * caveats underneath, "too few seeds to tell" first. Every sentence comes from
+ * src/ui/evidence.ts.
  */
 import { LitElement, css, html, nothing } from 'lit';
-import type { ArmKey, CaveatNote, FailureNote, RankingRow, VerdictRow } from './evidence.ts';
-import { num, pValue } from './format.ts';
+import type { AdjustmentView, ArmKey, CaveatNote, FailureNote, RankingRow, VerdictRow } from './evidence.ts';
+import { blownUpLabel } from './evidence.ts';
+import { num, percent, pValue } from './format.ts';
 import { controls } from './styles.ts';
 
 export class FfVerdictTable extends LitElement {
@@ -16,6 +20,8 @@ export class FfVerdictTable extends LitElement {
     caveats: { attribute: false },
     failures: { attribute: false },
     arms: { attribute: false },
+    adjustment: { attribute: false },
+    noSkill: { attribute: false },
     metric: {},
   };
   declare verdicts: VerdictRow[];
@@ -24,6 +30,10 @@ export class FfVerdictTable extends LitElement {
   declare caveats: CaveatNote[];
   declare failures: FailureNote[];
   declare arms: ArmKey[];
+  /** How p was adjusted: the column heading and the one line that explains it. */
+  declare adjustment: AdjustmentView | null;
+  /** Sentences for rungs where no arm beats the best constant predictor. */
+  declare noSkill: string[];
   declare metric: string;
 
   static override styles = [
@@ -88,7 +98,50 @@ export class FfVerdictTable extends LitElement {
         color: var(--ochre);
         font-style: italic;
       }
-      .verdict[data-kind='no-difference'] {
+      .verdict[data-kind='no-difference'],
+      .verdict[data-kind='not-tested'] {
+        color: var(--muted);
+      }
+      .verdict[data-kind='not-tested'] {
+        font-weight: 400;
+        font-style: italic;
+      }
+      .verdict[data-kind='not-fitted'],
+      .verdict[data-kind='no-skill'] {
+        color: var(--danger);
+      }
+      .verdict .mark {
+        display: inline-block;
+        margin-right: 0.3em;
+        font-style: normal;
+      }
+      .sub {
+        display: block;
+        color: var(--muted);
+        font-size: 0.86em;
+      }
+      .bang {
+        display: inline-block;
+        margin-left: 0.15em;
+        padding: 0 0.3em;
+        border-radius: 2px;
+        background: var(--danger-soft);
+        color: var(--danger);
+        font-weight: 800;
+        cursor: help;
+      }
+      .blew {
+        display: block;
+        font-family: var(--sans);
+        color: var(--danger);
+        font-size: 0.86em;
+        font-weight: 600;
+        white-space: normal;
+      }
+      .blew-inline {
+        color: var(--danger);
+      }
+      tr[data-tested='no'] td.p-adj {
         color: var(--muted);
       }
       .ci {
@@ -126,7 +179,8 @@ export class FfVerdictTable extends LitElement {
         border-left-color: var(--ochre);
         background: var(--ochre-soft);
       }
-      .notes li.fail {
+      .notes li.fail,
+      .notes li.skill {
         border-left-color: var(--danger);
         background: var(--danger-soft);
       }
@@ -149,6 +203,8 @@ export class FfVerdictTable extends LitElement {
     this.caveats = [];
     this.failures = [];
     this.arms = [];
+    this.adjustment = null;
+    this.noSkill = [];
     this.metric = 'mae';
   }
 
@@ -176,7 +232,7 @@ export class FfVerdictTable extends LitElement {
               <td class="l order">
                 ${r.order.map(
                   (o, i) => html`${i > 0 ? html`<span class="lt"> &lt; </span>` : nothing}<span style=${`color: ${o.color}`}>${o.arm}</span>
-                    <span class="ci">${num(o.mean)}</span>`,
+                    <span class="ci">${o.n ? num(o.mean) : nothing}${o.blownUp ? html` <span class="blew-inline">(${blownUpLabel(o.blownUp)})</span>` : nothing}</span>`,
                 )}
               </td>
             </tr>`,
@@ -187,8 +243,36 @@ export class FfVerdictTable extends LitElement {
     </div>`;
   }
 
+  /** One arm's cell: its mean error, relative error, a "!" if it does not beat the constant, and runs that blew up. */
+  private armCell(v: VerdictRow, side: 'A' | 'B') {
+    const mean = side === 'A' ? v.meanA : v.meanB;
+    const relative = side === 'A' ? v.relativeA : v.relativeB;
+    const blown = side === 'A' ? v.blownUpA : v.blownUpB;
+    const blownNote = side === 'A' ? v.blownUpNoteA : v.blownUpNoteB;
+    const warning = side === 'A' ? v.constantWarningA : v.constantWarningB;
+    if (!v.n && !blown) return '—';
+    // A run that blew up says more than "!": its words stand in for the mean, with the constant sentence as the tooltip.
+    if (blown) return html`<span class="blew" data-blown-up=${side} title=${warning}>${blownNote}</span>`;
+    return html`${num(mean)}${warning
+        ? html`<span class="bang" title=${warning} data-constant-warning=${side}>!<span class="visually-hidden"> ${warning}</span></span>`
+        : nothing}<span class="sub">rel. ${percent(relative)}</span>`;
+  }
+
+  private verdictCell(v: VerdictRow) {
+    const mark = v.kind === 'not-fitted' || v.kind === 'no-skill' ? '⚠' : v.kind === 'not-tested' ? '○' : '';
+    return html`<td
+      class="l verdict"
+      data-kind=${v.kind}
+      style=${v.kind === 'a-better' ? `color: ${this.colorOf(v.a)}` : v.kind === 'b-better' ? `color: ${this.colorOf(v.b)}` : ''}
+    >
+      ${mark ? html`<span class="mark" aria-hidden="true">${mark}</span>` : nothing}${v.text}
+    </td>`;
+  }
+
   override render() {
     if (this.verdicts.length === 0) return null;
+    const adjusted = this.adjustment?.header ?? 'p (adjusted)';
+    const blownAnywhere = this.verdicts.some((v) => v.blownUpA || v.blownUpB);
     return html`${this.ranking()}<div class="wrap">
         <table>
           <caption>
@@ -198,44 +282,50 @@ export class FfVerdictTable extends LitElement {
             <tr>
               <th class="l" scope="col">Test size</th>
               <th class="l" scope="col">What shifted</th>
+              <th scope="col">best constant</th>
               <th class="l" scope="col">Arms A vs B</th>
               <th scope="col">${this.metric} of A</th>
               <th scope="col">${this.metric} of B</th>
               <th scope="col">A − B [95% interval]</th>
               <th scope="col">P(A &lt; B)</th>
-              <th scope="col">signed-rank p</th>
+              <th scope="col">p (raw)</th>
+              <th scope="col" data-p-adjusted-header>${adjusted}</th>
               <th class="l" scope="col">Verdict</th>
             </tr>
           </thead>
           <tbody>
             ${this.verdicts.map(
-              (v) => html`<tr data-size=${v.size}>
+              (v) => html`<tr data-size=${v.size} data-tested=${v.tested ? 'yes' : 'no'} data-kind=${v.kind}>
                 <td class="l num">n = ${v.size}${v.scale !== 1 ? html`, ×${v.scale}` : nothing}${v.inTrainingRange ? html`<span class="star" title="inside the training size range">*</span>` : nothing}</td>
                 <td class="l shift">depth ${num(v.depthMean, 2)} · <wbr />degree ${num(v.meanDegree, 2)}</td>
+                <td class="num" data-constant>${num(v.constant)}${Number.isFinite(v.constantTrain) ? html`<span class="sub">train-fitted ${num(v.constantTrain)}</span>` : nothing}</td>
                 <td class="l"><span style=${`color: ${this.colorOf(v.a)}`}>${v.a}</span> vs <span style=${`color: ${this.colorOf(v.b)}`}>${v.b}</span></td>
-                <td class="num">${v.n ? num(v.meanA) : '—'}</td>
-                <td class="num">${v.n ? num(v.meanB) : '—'}</td>
-                <td class="num">${v.n ? html`${num(v.diff)} <span class="ci">[${num(v.diffLow)}, ${num(v.diffHigh)}]</span>` : '—'}</td>
-                <td class="num">${v.n ? num(v.probabilityOfImprovement, 2) : '—'}</td>
-                <td class="num">${v.n ? pValue(v.p) : '—'}</td>
-                <td
-                  class="l verdict"
-                  data-kind=${v.kind}
-                  style=${v.kind === 'a-better' ? `color: ${this.colorOf(v.a)}` : v.kind === 'b-better' ? `color: ${this.colorOf(v.b)}` : ''}
-                >
-                  ${v.text}
+                <td class="num">${this.armCell(v, 'A')}</td>
+                <td class="num">${this.armCell(v, 'B')}</td>
+                <td class="num">
+                  ${!v.n ? '—' : v.blownUpA || v.blownUpB ? html`<span class="ci">no interval: a run blew up</span>` : html`${num(v.diff)} <span class="ci">[${num(v.diffLow)}, ${num(v.diffHigh)}]</span>`}
                 </td>
+                <td class="num">${v.n ? num(v.probabilityOfImprovement, 2) : '—'}</td>
+                <td class="num" data-p-raw>${v.n ? pValue(v.pRaw) : '—'}</td>
+                <td class="num p-adj" data-p-adjusted title=${v.tested ? '' : 'descriptive only: nothing is tested at this rung'}>
+                  ${v.n && v.tested ? pValue(v.pAdjusted) : v.n ? 'not tested' : '—'}
+                </td>
+                ${this.verdictCell(v)}
               </tr>`,
             )}
           </tbody>
         </table>
         <div class="foot">
           * inside the training size range. Depth: rounds the exact algorithm needs on these graphs; degree: mean incoming messages per node. Lower ${this.metric} is
-          better; P(A &lt; B) is the share of seed pairs where A had the lower error (ties count half).
+          better; rel.: mean relative error |y − t|/|t|. Best constant: the error of predicting one number for every node, the best such number for that size
+          (train-fitted: the number fitted on the training graphs); <strong>!</strong> marks an arm that does not beat it. P(A &lt; B) is the share of seed pairs
+          where A had the lower error (ties count half).${blownAnywhere ? ' A run that blew up (diverged, failed or gave a non-finite error) ranks as the worst outcome in the paired test.' : ''}
         </div>
+        ${this.adjustment ? html`<div class="foot" data-adjustment-note>${this.adjustment.note}</div>` : nothing}
       </div>
-      ${this.caveats.length || this.failures.length
+      ${this.caveats.length || this.failures.length || this.noSkill.length
         ? html`<ul class="notes" aria-label="Caveats">
+            ${this.noSkill.map((text) => html`<li class="skill" data-no-skill><strong>No skill.</strong> ${text}</li>`)}
             ${this.caveats.map(
               (c) => html`<li class=${c.tooFewSeeds ? 'few' : ''} data-caveat=${c.tooFewSeeds ? 'too-few-seeds' : 'other'}>
                 ${c.tooFewSeeds ? html`<strong>Too few seeds to tell.</strong> ` : nothing}${c.text}
@@ -244,8 +334,7 @@ export class FfVerdictTable extends LitElement {
             )}
             ${this.failures.map(
               (f) => html`<li class="fail" data-failure>
-                <strong>${f.arm}, seed ${f.seed}: ${f.status}.</strong> ${f.reason}${/[.!?]$/.test(f.reason) || !f.reason ? '' : '.'} This run is left out of the
-                statistics.
+                <strong>${f.arm}, seed ${f.seed}: ${f.status}.</strong> ${f.reason}${/[.!?]$/.test(f.reason) || !f.reason ? '' : '.'} ${f.treatment}
               </li>`,
             )}
           </ul>`

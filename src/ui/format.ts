@@ -14,6 +14,13 @@ export function pValue(p: number): string {
   return Number(p.toPrecision(2)).toString();
 }
 
+/** A proportion as a percentage with 2 significant digits: 0.006 → "0.6%", 0.081 → "8.1%"; ∞ for a blow-up. */
+export function percent(x: number | null | undefined): string {
+  if (x === null || x === undefined || Number.isNaN(x)) return '—';
+  if (!Number.isFinite(x)) return x > 0 ? '∞' : '−∞';
+  return `${Number((100 * x).toPrecision(2))}%`.replace('-', '−');
+}
+
 export function duration(seconds: number): string {
   if (!Number.isFinite(seconds) || seconds < 0) return '—';
   if (seconds < 1) return '< 1 s';

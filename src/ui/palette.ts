@@ -9,6 +9,8 @@ export const INK = '#1c2130';
 export const MUTED = '#545867';
 export const RULE = '#d4c8b0';
 export const TRAIN_BAND = '#e3d8bf';
+/** Runs that blew up and arms that missed the fit gate (always with a word or a shape beside it). */
+export const DANGER = '#9c2f22';
 
 export const ARM_COLORS = ['#0b6e69', '#7b2d62', '#a66a00', '#4d6b1f', '#a2372a', '#39456b', '#8a5a9e', '#2d7f9b'] as const;
 

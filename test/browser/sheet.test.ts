@@ -132,6 +132,12 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     expect(await fingerprint(page)).toMatch(/^[0-9a-f]{12}$/);
     // What shifted, next to the node counts.
     expect(await evidence.locator('ff-verdict-table tbody tr').first().textContent()).toMatch(/depth [\d.]+ · degree [\d.]+/);
+    // The fit gate per arm, in words, above the verdicts; raw and Holm-adjusted p side by side.
+    const gates = evidence.locator('ff-fit-gate li[data-gate]');
+    expect(await gates.count()).toBe(2);
+    for (const text of await gates.allTextContents()) expect(text).toMatch(/^\s*(max|sum): (fitted|not fitted) — in-distribution relative error [\d.]+%/);
+    expect(await evidence.locator('ff-verdict-table thead').textContent()).toMatch(/best constant.*p \(raw\).*p \(Holm, 3 tests\)/s);
+    expect(await evidence.locator('ff-verdict-table [data-adjustment-note]').textContent()).toMatch(/Holm–Bonferroni/);
     await page.screenshot({ path: join(SHOTS, 'sheet-quick-run.png'), fullPage: true });
 
     // Exports: every figure as SVG and PNG; results as the CLI's JSON document and as CSV.
@@ -156,7 +162,9 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     const csv = await saved(() => page.locator('ff-share button[data-action="export-csv"]').click());
     const lines = csv.bytes.toString('utf8').trim().split('\n');
     expect(lines[0]).toMatch(/^spec_hash,run,arm,seed,status/);
-    expect(lines).toHaveLength(1 + 4 * (1 + 3));
+    // Per run: an in-distribution row, a validation row and one row per rung.
+    expect(lines).toHaveLength(1 + 4 * (2 + 3));
+    expect(lines[0]).toMatch(/,best_constant_mae,.*,arm_fitted$/);
   }, 150_000);
 
   it('opens a share link without running it, and its run gives the CLI fingerprint', async () => {
