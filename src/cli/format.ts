@@ -110,7 +110,7 @@ export function renderResults(doc: ResultsDocument): string {
   lines.push('');
   lines.push(
     `Runs: ${counts['ok'] ?? 0} ok${bad.length ? ', ' + bad.map(([k, v]) => `${v} ${k}`).join(', ') : ''} of ${doc.runsExpected}` +
-      (bad.length ? ' — excluded runs are listed per arm in the JSON (comparison.rungs[].arms[].excludedReasons)' : ''),
+      (bad.length ? ' — diverged and failed runs count as their arm\'s worst outcome; cancelled ones are left out (comparison.rungs[].arms[].excludedReasons in the JSON)' : ''),
   );
   for (const r of doc.runs.filter((x) => x.status !== 'ok')) {
     const where = r.status === 'diverged' ? ` at step ${r.divergedAt} (last finite loss ${num(r.lastFiniteLoss ?? NaN)})` : '';
