@@ -24,7 +24,16 @@ interface Doc {
   engine: { backend: string; threads: number; version: string };
   spec: { question: string };
   runs: Array<{ arm: string; seed: number; status: string; reason?: string; divergedAt?: number; ladder: Array<{ size: number; metrics: { mae: number } }> }>;
-  comparison: { rungs: Array<{ size: number; pairs: Array<{ verdict: { kind: string } }> }> };
+  comparison: {
+    rungs: Array<{
+      size: number;
+      baseline: { best: number; train: number; bestRelative: number; trainRelative: number };
+      arms: Array<{ arm: string; relative: number; beatsConstant: boolean; nonFinite: number }>;
+      pairs: Array<{ verdict: { kind: string; pRaw: number; pAdjusted: number } }>;
+    }>;
+    fit: Array<{ arm: string; gate: number; median: number; fitted: boolean | null; passing: number }>;
+    adjustment: { method: string; tests: number };
+  };
 }
 
 describe('farfield run', () => {
@@ -46,6 +55,22 @@ describe('farfield run', () => {
     expect(doc.comparison.rungs[0]!.pairs[0]!.verdict.kind).toBe('too-few-seeds');
   });
 
+  it('carries the fit gate, both baselines, relative errors and raw and adjusted p', () => {
+    const c = doc.comparison;
+    expect(c.adjustment).toEqual({ method: 'holm', tests: 2 });
+    expect(c.fit.map((f) => [f.arm, f.gate, f.fitted])).toEqual([
+      ['max', 0.05, false],
+      ['sum', 0.05, false],
+    ]);
+    for (const rung of c.rungs) {
+      expect(rung.baseline.best).toBeGreaterThan(0);
+      expect(rung.baseline.train).toBeGreaterThanOrEqual(rung.baseline.best);
+      for (const arm of rung.arms) expect(arm.relative).toBeGreaterThan(0);
+      const v = rung.pairs[0]!.verdict;
+      expect(v.pAdjusted).toBeGreaterThanOrEqual(v.pRaw);
+    }
+  });
+
   it('is deterministic: the same spec gives the same fingerprint, on one worker or two', () => {
     const again = JSON.parse(farfield('run', tiny, '--json', '--quiet', '--workers', '1').stdout) as Doc;
     expect(again.fingerprint).toBe(doc.fingerprint);
@@ -64,7 +89,13 @@ describe('farfield run', () => {
     const text = farfield('run', tiny, '--quiet', '--workers', '2');
     expect(text.stdout).toMatch(/size\s+depth\s+degree\s+max\s+sum/);
     expect(text.stdout).toMatch(/too few seeds to tell/);
-    expect(text.stdout).toMatch(/smallest possible two-sided signed-rank p is 0\.5; run at least 6 seeds/);
+    // 2 pairs: smallest exact two-sided p = 2/2^2 = 0.5; with 2 rungs Holm doubles it, and 7 seeds are the fewest with 2/2^n < 0.05/2.
+    expect(text.stdout).toMatch(/smallest possible two-sided signed-rank p is 0\.5, 1 after adjusting for 2 tests; run at least 7 seeds/);
+    // 30 training steps do not fit the task: the gate says so with the numbers, and no winner is called.
+    expect(text.stdout).toMatch(/Fit gate: .* at most 5%: max [\d.]+% NOT FITTED/);
+    expect(text.stdout).toMatch(/max is not fitted: .* Train longer or raise the budget\./);
+    expect(text.stdout).toMatch(/signed-rank p\s+p adj\. \(Holm, 2 tests\)\s+verdict/);
+    expect(text.stdout).toMatch(/constant best\/train/);
     expect(text.stdout).toContain(`fingerprint ${doc.fingerprint}`);
   });
 
