@@ -301,6 +301,7 @@ export class FfArmCard extends LitElement {
             }}
           /><span class="inherit">${v.learningRate === undefined ? 'as the budget' : 'this arm only'}</span>`,
         )}
+        ${this.row('training', 'Training', html`<span class="sub">${v.training.text}</span><span class="inherit">${v.training.own ? 'this arm only' : 'as the budget'}</span>`)}
         ${this.row('hidden', 'Hidden width', this.numberInput('Hidden width', m.hidden, 'model.hidden', (x) => this.switchEdit('hidden', x), '1'))}
         ${this.row('nodeTransform', 'Node input', this.transforms('nodeTransform', v.nodeFeatures, m.nodeTransform))}
         ${this.row('edgeTransform', 'Edge input', this.transforms('edgeTransform', v.edgeFeatures, m.edgeTransform))}

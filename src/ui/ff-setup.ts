@@ -3,7 +3,8 @@
  * them: task; training graphs; the test ladder and scale shift; seeds;
  * budget; metric. Reports each change as an 'ff-edit' event.
  */
-import { LitElement, css, html, type TemplateResult } from 'lit';
+import { LitElement, css, html, nothing, type TemplateResult } from 'lit';
+import { DEFAULT_FIT_GATE, type Schedule } from '../experiment/spec.ts';
 import type { Draft } from './spec-draft.ts';
 import { fieldName, parseNumber, parseNumberList } from './spec-draft.ts';
 import type { FamilyInfo, TaskInfo } from './catalogue.ts';
@@ -120,6 +121,42 @@ export class FfSetup extends LitElement {
     />`;
   }
 
+  /** A fraction shown and typed as a percentage. */
+  private percentNumber(path: Path, fraction: number, label: string): TemplateResult {
+    return html`<input
+      type="number"
+      step="any"
+      min="0.01"
+      aria-label=${label}
+      aria-invalid=${this.bad(path)}
+      .value=${Number.isFinite(fraction) ? String(Number((fraction * 100).toPrecision(6))) : ''}
+      ?disabled=${this.disabled}
+      @change=${(e: Event) => this.set(path, parseNumber((e.target as HTMLInputElement).value) / 100)}
+    />`;
+  }
+
+  /** Constant rate, or warm-up then cosine decay (the preset's own warm-up and floor are kept when present). */
+  private scheduleChoice(schedule: Schedule | undefined): TemplateResult {
+    const cosine = schedule?.kind === 'warmup-cosine';
+    return html`rate
+      <select
+        aria-label="Learning-rate schedule"
+        ?disabled=${this.disabled}
+        @change=${(e: Event) =>
+          this.set(
+            ['budget', 'schedule'],
+            (e.target as HTMLSelectElement).value === 'warmup-cosine' ? { kind: 'warmup-cosine', warmup: 50, floor: 0.05 } : undefined,
+          )}
+      >
+        <option value="constant" ?selected=${!cosine}>constant</option>
+        <option value="warmup-cosine" ?selected=${cosine}>warm-up, then cosine decay</option>
+      </select>
+      ${cosine
+        ? html`over ${this.number(['budget', 'schedule', 'warmup'], schedule.warmup, 'Warm-up steps', { min: 0 })} warm-up steps, down to
+            ${this.number(['budget', 'schedule', 'floor'], schedule.floor, 'Final rate as a fraction of the rate', { step: 'any' })} × the rate`
+        : nothing}`;
+  }
+
   private list(path: Path, values: readonly number[], label: string, short = false): TemplateResult {
     return html`<input
       type="text"
@@ -205,7 +242,15 @@ export class FfSetup extends LitElement {
         ${this.number(['budget', 'learningRate'], d.budget.learningRate, 'Learning rate', { step: 'any', className: 'wide' })}, gradient clip
         ${this.number(['budget', 'clipNorm'], d.budget.clipNorm, 'Gradient clip norm', { step: 'any' })},
         ${this.select(['budget', 'loss'], d.budget.loss, 'Loss', OPTIONS.loss)} loss; keep the best weights on validation every
-        ${this.number(['budget', 'validateEvery'], d.budget.validateEvery, 'Validate every k steps (0: keep the last weights)')} steps.
+        ${this.number(['budget', 'validateEvery'], d.budget.validateEvery, 'Validate every k steps (0: keep the last weights)')} steps;
+        ${this.scheduleChoice(d.budget.schedule)}.
+      </div>
+
+      <div class="term">Fit gate</div>
+      <div class="sentence">
+        judge an arm only if its in-distribution relative error on fresh graphs (median over seeds) is at most
+        ${this.percentNumber(['budget', 'fitGate'], d.budget.fitGate ?? DEFAULT_FIT_GATE, 'Fit gate, in percent')} %; an arm above it is
+        "not fitted" and no verdict calls a winner for it.
       </div>
 
       <div class="term">Score</div>

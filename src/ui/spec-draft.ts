@@ -231,6 +231,8 @@ export interface ArmCardView {
   /** The arm's own learning rate, if it overrides the budget's. */
   learningRate: number | undefined;
   sharedLearningRate: number;
+  /** The training switches in force for this arm in words (schedule, L1, step supervision), and whether the arm sets any itself. */
+  training: { text: string; own: boolean };
   nodeFeatures: string[];
   edgeFeatures: string[];
   canRemove: boolean;
@@ -246,6 +248,8 @@ export function armCards(draft: Draft, colorOf: (index: number) => string): ArmC
   const differs = differingSwitches(models) as Set<string>;
   const rates = draft.arms.map((arm) => arm.learningRate ?? draft.budget.learningRate);
   if (rates.some((r) => r !== rates[0])) differs.add('learningRate');
+  const training = draft.arms.map((_, index) => trainingWords(draft, index));
+  if (training.some((t) => t.text !== training[0]!.text)) differs.add('training');
   return draft.arms.map((arm, index) => {
     const overridden = new Set<string>(Object.entries(arm.model).filter(([k, v]) => v !== undefined && k !== 'steps').map(([k]) => k));
     for (const [k, v] of Object.entries(arm.model.steps ?? {})) if (v !== undefined) overridden.add(`steps.${k}`);
@@ -260,9 +264,23 @@ export function armCards(draft: Draft, colorOf: (index: number) => string): ArmC
       differs,
       learningRate: arm.learningRate,
       sharedLearningRate: draft.budget.learningRate,
+      training: training[index]!,
       nodeFeatures: task?.nodeFeatures ?? ['node input'],
       edgeFeatures: task?.edgeFeatures ?? ['edge input'],
       canRemove: draft.arms.length > 2,
     };
   });
+}
+
+/** "warm-up 50 steps, then cosine to 0.05×; L1 1e-5; step supervision", or "constant rate". */
+export function trainingWords(draft: Draft, index: number): { text: string; own: boolean } {
+  const arm = draft.arms[index]!;
+  const b = draft.budget;
+  const schedule = arm.schedule ?? b.schedule;
+  const sparsity = arm.sparsity ?? b.sparsity ?? 0;
+  const stepwise = arm.stepSupervision ?? b.stepSupervision ?? false;
+  const parts = [schedule?.kind === 'warmup-cosine' ? `warm-up ${schedule.warmup} steps, then cosine to ${schedule.floor}× the rate` : 'constant rate'];
+  if (sparsity > 0) parts.push(`L1 ${sparsity}`);
+  if (stepwise) parts.push('step supervision');
+  return { text: parts.join('; '), own: arm.schedule !== undefined || arm.sparsity !== undefined || arm.stepSupervision !== undefined };
 }

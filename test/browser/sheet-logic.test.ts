@@ -415,3 +415,32 @@ describe('progress', () => {
     expect(sparklinePath([1], 100, 20)).toBe('');
   });
 });
+
+describe('training switches and the fit gate on the sheet', () => {
+  it('arm cards say which training switches each arm runs, and mark them when arms differ', () => {
+    const spec = tinySpec();
+    const draft = {
+      ...spec,
+      budget: { ...spec.budget, schedule: { kind: 'warmup-cosine' as const, warmup: 50, floor: 0.05 } },
+      arms: [spec.arms[0]!, { ...spec.arms[1]!, sparsity: 1e-5, stepSupervision: true }],
+    };
+    const cards = armCards(draft, () => '#000');
+    expect(cards[0]!.training).toEqual({ text: 'warm-up 50 steps, then cosine to 0.05× the rate', own: false });
+    expect(cards[1]!.training).toEqual({ text: 'warm-up 50 steps, then cosine to 0.05× the rate; L1 0.00001; step supervision', own: true });
+    expect(cards[0]!.differs.has('training')).toBe(true);
+    expect(armCards(spec, () => '#000')[0]!.training.text).toBe('constant rate');
+  });
+
+  it('the fit gate and the schedule are ordinary, validated spec fields', () => {
+    const spec = tinySpec();
+    const gated = applyEdit(spec, { kind: 'field', path: ['budget', 'fitGate'], value: 0.1 });
+    expect(validateDraft(gated)).toMatchObject({ ok: true });
+    const bad = validateDraft(applyEdit(spec, { kind: 'field', path: ['budget', 'fitGate'], value: 0 }));
+    expect(bad.ok).toBe(false);
+    if (!bad.ok) expect(bad.problems.join(' ')).toMatch(/budget\.fitGate/);
+    const cosine = applyEdit(spec, { kind: 'field', path: ['budget', 'schedule'], value: { kind: 'warmup-cosine', warmup: 20, floor: 0.1 } });
+    expect(validateDraft(cosine)).toMatchObject({ ok: true });
+    const constant = applyEdit(cosine, { kind: 'field', path: ['budget', 'schedule'], value: undefined });
+    expect('schedule' in constant.budget).toBe(false);
+  });
+});
