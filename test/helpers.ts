@@ -1,6 +1,6 @@
 import { expect } from 'vitest';
 import { validateSpec } from '../src/experiment/check.ts';
-import { modelSchema, type ExperimentSpec, type SpecInput } from '../src/experiment/spec.ts';
+import { SpecError, modelSchema, type ExperimentSpec, type SpecInput } from '../src/experiment/spec.ts';
 import { MessagePassingNetwork } from '../src/model/network.ts';
 import { Rng } from '../src/util/rng.ts';
 
@@ -62,4 +62,15 @@ export function expectSameBits(actual: number[][], expected: number[][]): void {
     const differing = a.map((v, i) => (Object.is(v, b[i]) ? -1 : i)).filter((i) => i >= 0);
     expect(differing.slice(0, 5).map((i) => [t, i, a[i], b[i]])).toEqual([]);
   }
+}
+
+/** The message of the SpecError a spec is refused with; fails the test if the spec is accepted. */
+export function specRefusal(input: unknown): string {
+  try {
+    validateSpec(input);
+  } catch (error) {
+    expect(error).toBeInstanceOf(SpecError);
+    return (error as Error).message;
+  }
+  throw new Error('spec was accepted');
 }

@@ -1,19 +1,12 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { validateSpec } from '../../src/experiment/check.ts';
-import { armModel, SpecError } from '../../src/experiment/spec.ts';
+import { armModel } from '../../src/experiment/spec.ts';
+import { specRefusal } from '../helpers.ts';
 
 const preset = () => JSON.parse(readFileSync(new URL('../../presets/shortest-path-max-vs-sum.json', import.meta.url), 'utf8')) as Record<string, unknown>;
 
-function refusal(input: unknown): string {
-  try {
-    validateSpec(input);
-  } catch (error) {
-    expect(error).toBeInstanceOf(SpecError);
-    return (error as Error).message;
-  }
-  throw new Error('spec was accepted');
-}
+const refusal = specRefusal;
 
 describe('bad specs are refused with the field named', () => {
   it('missing field', () => {

@@ -26,7 +26,7 @@ import { maskedLoss, stepwiseLoss, type LossName } from '../../src/train/loss.ts
 import { uploadBatch } from '../../src/train/tensors.ts';
 import { train } from '../../src/train/trainer.ts';
 import { Rng } from '../../src/util/rng.ts';
-import { bellmanFordNetwork, expectSameBits, tinySpec } from '../helpers.ts';
+import { bellmanFordNetwork, expectSameBits, specRefusal, tinySpec } from '../helpers.ts';
 
 const identity: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
 const INF = Infinity;
@@ -281,15 +281,7 @@ describe('training with step-wise supervision', () => {
 });
 
 describe('spec check', () => {
-  function refusal(input: SpecInput): string {
-    try {
-      validateSpec(input);
-    } catch (error) {
-      expect(error).toBeInstanceOf(SpecError);
-      return (error as Error).message;
-    }
-    throw new Error('spec was accepted');
-  }
+  const refusal = specRefusal;
   const base = (): SpecInput => ({
     farfield: 1,
     question: 'test: is step-wise supervision refused where there are no intermediate states?',
