@@ -6,10 +6,13 @@
  */
 import { closeSync, existsSync, fsyncSync, openSync, readFileSync, writeSync } from 'node:fs';
 import type { RunResult } from '../experiment/run.ts';
+import { ENGINE_VERSION } from '../experiment/results.ts';
 
 export interface JournalHeader {
   kind: 'farfield-journal';
   specHash: string;
+  /** Absent in journals written before it was recorded (engine 0.1.0). */
+  engineVersion?: string;
 }
 
 export function readJournal(path: string, specHash: string): RunResult[] {
@@ -19,6 +22,10 @@ export function readJournal(path: string, specHash: string): RunResult[] {
   if (header.kind !== 'farfield-journal') throw new Error(`cli/journal: ${path} is not a farfield run journal`);
   if (header.specHash !== specHash) {
     throw new Error(`cli/journal: ${path} belongs to spec ${header.specHash}, not ${specHash}; remove it or pass a different --out`);
+  }
+  const written = header.engineVersion ?? '0.1.0';
+  if (written !== ENGINE_VERSION) {
+    throw new Error(`cli/journal: ${path} was written by engine ${written}, which computes different numbers than this engine (${ENGINE_VERSION}); remove it or pass a different --out`);
   }
   const runs: RunResult[] = [];
   for (const line of lines.slice(1)) {
@@ -38,7 +45,7 @@ export class Journal {
   constructor(readonly path: string, specHash: string, append: boolean) {
     const fresh = !append || !existsSync(path);
     this.fd = openSync(path, fresh ? 'w' : 'a');
-    if (fresh) this.write({ kind: 'farfield-journal', specHash } satisfies JournalHeader);
+    if (fresh) this.write({ kind: 'farfield-journal', specHash, engineVersion: ENGINE_VERSION } satisfies JournalHeader);
   }
 
   private write(value: unknown): void {

@@ -7,7 +7,11 @@ import type { RunResult } from './run.ts';
 import { compareRuns, type Comparison } from './compare.ts';
 import { canonicalJson, sha256Hex } from '../util/hash.ts';
 
-export const ENGINE_VERSION = '0.1.0';
+/**
+ * Bumped whenever the same spec gives different numbers: 0.2.0 scores the fit gate on fresh
+ * graphs, keeps weights by the preset's metric and gives weight-carrying tasks inputs in weight units.
+ */
+export const ENGINE_VERSION = '0.2.0';
 export const RESULTS_KIND = 'farfield-results';
 
 export interface EngineInfo {

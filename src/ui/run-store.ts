@@ -8,6 +8,15 @@
  * degrades to memory and says so through `persistent`.
  */
 import type { RunResult } from '../experiment/run.ts';
+import { ENGINE_VERSION } from '../experiment/results.ts';
+
+/**
+ * Kept runs belong to a spec AND an engine: an engine that computes different numbers for the
+ * same spec (new task inputs, a new scoring set) must not be shown an older engine's runs.
+ */
+export function keptRunsKey(specHash: string): string {
+  return `${ENGINE_VERSION}:${specHash}`;
+}
 
 export interface RunStore {
   readonly persistent: boolean;
@@ -17,6 +26,7 @@ export interface RunStore {
 }
 
 interface StoredRun {
+  /** keptRunsKey(spec hash): engine version and spec hash. */
   specHash: string;
   index: number;
   savedAt: string;
@@ -83,19 +93,19 @@ export async function openRunStore(): Promise<RunStore> {
     persistent: true,
     async load(hash) {
       const tx = db.transaction(RUNS, 'readonly');
-      const rows = (await request(tx.objectStore(RUNS).index('bySpec').getAll(IDBKeyRange.only(hash)))) as StoredRun[];
+      const rows = (await request(tx.objectStore(RUNS).index('bySpec').getAll(IDBKeyRange.only(keptRunsKey(hash))))) as StoredRun[];
       return rows.map((row) => row.result).sort((a, b) => a.index - b.index);
     },
     async save(hash, result) {
       if (!keepable(result)) return;
       const tx = db.transaction(RUNS, 'readwrite');
-      const row: StoredRun = { specHash: hash, index: result.index, savedAt: new Date().toISOString(), result };
+      const row: StoredRun = { specHash: keptRunsKey(hash), index: result.index, savedAt: new Date().toISOString(), result };
       await request(tx.objectStore(RUNS).put(row));
     },
     async forget(hash) {
       const tx = db.transaction(RUNS, 'readwrite');
       const store = tx.objectStore(RUNS);
-      const keys = await request(store.index('bySpec').getAllKeys(IDBKeyRange.only(hash)));
+      const keys = await request(store.index('bySpec').getAllKeys(IDBKeyRange.only(keptRunsKey(hash))));
       await Promise.all(keys.map((key) => request(store.delete(key))));
     },
   };

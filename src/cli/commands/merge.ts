@@ -37,6 +37,9 @@ export async function commandMerge(args: string[]): Promise<number> {
     if (part.specHash !== first.specHash) {
       throw new Error(`cli/merge: ${positionals[p]} is from spec ${part.specHash}, but ${positionals[0]} is from spec ${first.specHash}`);
     }
+    if (part.engine?.version !== first.engine?.version) {
+      throw new Error(`cli/merge: ${positionals[p]} was computed by engine ${part.engine?.version}, but ${positionals[0]} by engine ${first.engine?.version}; shards must come from one engine version`);
+    }
     for (const run of part.runs) {
       const seen = byIndex.get(run.index);
       if (seen && canonicalJson({ ...seen, seconds: 0 }) !== canonicalJson({ ...run, seconds: 0 })) {

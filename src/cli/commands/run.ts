@@ -3,7 +3,7 @@ import { writeFileSync, renameSync, rmSync } from 'node:fs';
 import { parse, UsageError, intFlag } from '../main.ts';
 import { loadSpec } from '../load.ts';
 import { planRuns, shardRuns } from '../../experiment/plan.ts';
-import { buildResults, specHash as hashSpec } from '../../experiment/results.ts';
+import { buildResults, ENGINE_VERSION, specHash as hashSpec } from '../../experiment/results.ts';
 import { checkSpec } from '../../experiment/check.ts';
 import { LIMITS } from '../../experiment/limits.ts';
 import type { RunResult } from '../../experiment/run.ts';
@@ -105,7 +105,7 @@ export async function commandRun(args: string[]): Promise<number> {
   journal?.close();
 
   const all = [...finished.filter((r) => plans.some((p) => p.index === r.index)), ...fresh];
-  const doc = buildResults(spec, all, { name: 'farfield', version: '0.1.0', backend: engine.backend, threads: engine.threads, host: 'node' }, shard);
+  const doc = buildResults(spec, all, { name: 'farfield', version: ENGINE_VERSION, backend: engine.backend, threads: engine.threads, host: 'node' }, shard);
   const text = JSON.stringify(doc, null, 1);
   if (values.out) {
     writeAtomically(values.out, text + '\n');
