@@ -3,7 +3,7 @@
  * builds the site, opens a shipped preset's share link in Debian's Chromium
  * (never a downloaded browser), presses Run, waits until every run is done,
  * then photographs the sheet's top (question, setup, arms), the evidence, and
- * the probes after "Look inside".
+ * the probes after "Probe the networks".
  *
  *   npx tsx scripts/screenshots.ts [preset-name]     (default: quick-demo)
  */
@@ -36,7 +36,7 @@ try {
   const evidence = page.locator('ff-evidence');
   await evidence.scrollIntoViewIfNeeded();
   await evidence.screenshot({ path: join(OUT, 'evidence.png') });
-  await page.getByRole('button', { name: /Look inside/ }).click();
+  await page.getByRole('button', { name: /Probe the networks/ }).click();
   await page.waitForSelector('ff-probes ff-audit-table tbody tr', { timeout: 10 * 60_000 });
   await page.waitForTimeout(500);
   await page.locator('ff-probes').screenshot({ path: join(OUT, 'probes.png') });

@@ -202,7 +202,7 @@ export class FfEvidence extends LitElement {
         this.figures = { curves: null, diffs: null, seeds: null };
         return;
       }
-      // Presenter view draws at a smaller logical width; the SVG is scaled up to the
+      // The lecture layout draws at a smaller logical width; the SVG is scaled up to the
       // column, so its text grows with the page's.
       const zoom = this.presenter ? 1.35 : 1;
       const side = this.sideBySide();

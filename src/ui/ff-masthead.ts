@@ -1,4 +1,4 @@
-/** <ff-masthead>: the sheet's title bar: where the experiment came from, the preset picker, a preset file, presenter view. */
+/** <ff-masthead>: the sheet's title bar: where the experiment came from, the preset picker, a preset file, the lecture layout switch. */
 import { LitElement, css, html } from 'lit';
 import type { PresetEntry } from './presets.ts';
 import { controls } from './styles.ts';
@@ -145,7 +145,7 @@ export class FfMasthead extends LitElement {
         <label for="file">Open preset file…</label>
         <input id="file" type="file" accept=".json,application/json" aria-label="Open a preset file" ?disabled=${this.disabled} @change=${this.onFile} />
       </div>
-      <button type="button" aria-pressed=${this.presenter ? 'true' : 'false'} @click=${() => emit(this, 'ff-presenter', null)}>Presenter view</button>
+      <button type="button" aria-pressed=${this.presenter ? 'true' : 'false'} @click=${() => emit(this, 'ff-presenter', null)}>Lecture layout</button>
     </header>`;
   }
 }

@@ -1,5 +1,5 @@
 /**
- * <ff-probes>: "Look inside" the trained networks. Pressing the button trains
+ * <ff-probes>: "Probe the networks": look into the trained networks. Pressing the button trains
  * each arm on the first seed in a Web Worker (the same engine as every run),
  * then shows what the probes find: the learned function against exact truth
  * (scale sweep, length sweep, message-function probe) with the training range
@@ -258,8 +258,8 @@ export class FfProbes extends LitElement {
         </p>
         ${running
           ? html`<button type="button" data-action="stop-probes" @click=${() => c.stop()}>Stop</button>`
-          : html`<button type="button" class="go" data-action="look-inside" aria-label=${`${c.doc ? 'Look inside again' : 'Look inside'}: train each arm once and show its probes, audit and alignment trace`} @click=${() => this.look()}>
-              ${c.doc ? 'Look inside again' : 'Look inside'}
+          : html`<button type="button" class="go" data-action="look-inside" aria-label=${`${c.doc ? 'Probe the networks again' : 'Probe the networks'}: train each arm once and show its probes, audit and alignment trace`} @click=${() => this.look()}>
+              ${c.doc ? 'Probe the networks again' : 'Probe the networks'}
             </button>`}
       </div>
       ${this.notice ? html`<p class="error" role="alert">${this.notice}</p>` : nothing}

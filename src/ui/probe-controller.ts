@@ -1,6 +1,6 @@
 /**
  * Starts and stops the probe worker for <ff-probes>: one Web Worker per
- * "Look inside", which trains each arm on the first seed and returns the
+ * "Probe the networks", which trains each arm on the first seed and returns the
  * ProbeDocument (probes, audit, alignment trace). Stop terminates the worker
  * (probeDocument is synchronous inside it, so a message could not reach it).
  */

@@ -1,5 +1,5 @@
 /**
- * "Look inside" in real Chromium (built site, Debian's /usr/bin/chromium via
+ * "Probe the networks" in real Chromium (built site, Debian's /usr/bin/chromium via
  * playwright-core, as in sheet.test.ts): the tiny probe fixture opened from a
  * share link, the probes run in a Web Worker, and the sheet shows the three
  * probe figures, the audit table and the alignment trace, whose step slider
@@ -19,7 +19,7 @@ const ROOT = resolve(import.meta.dirname, '../..');
 const SITE = join(ROOT, 'test-output', 'site-probes');
 const SHOTS = join(ROOT, 'test-output');
 
-describe.skipIf(!existsSync(CHROMIUM))('look inside: probes, audit and alignment trace in Chromium', () => {
+describe.skipIf(!existsSync(CHROMIUM))('probe the networks: probes, audit and alignment trace in Chromium', () => {
   let site: StaticServer;
   let browser: Browser;
 
@@ -50,7 +50,7 @@ describe.skipIf(!existsSync(CHROMIUM))('look inside: probes, audit and alignment
     expect(await page.getByLabel('Question', { exact: true }).inputValue()).toBe(spec.question);
 
     const probes = page.locator('ff-probes');
-    const look = page.getByRole('button', { name: /Look inside/ });
+    const look = page.getByRole('button', { name: /Probe the networks/ });
     await look.scrollIntoViewIfNeeded();
     await look.click();
     // Progress shows while the worker trains; the page keeps answering meanwhile.
