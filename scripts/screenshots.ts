@@ -5,7 +5,7 @@
  * then photographs the sheet's top (question, setup, arms), the evidence, and
  * the probes after "Probe the networks".
  *
- *   npx tsx scripts/screenshots.ts [preset-name]     (default: quick-demo)
+ *   npx tsx scripts/screenshots.ts [preset-name] [--log]     (default: quick-demo; --log: errors on a log scale)
  */
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
@@ -18,7 +18,7 @@ import { CHROMIUM, CHROMIUM_ARGS } from '../bench/chromium.ts';
 
 const ROOT = resolve(import.meta.dirname, '..');
 const OUT = join(ROOT, 'docs', 'screenshots');
-const preset = process.argv[2] ?? 'quick-demo';
+const preset = process.argv.slice(2).find((a) => !a.startsWith('--')) ?? 'quick-demo';
 
 const spec = validateSpec(JSON.parse(readFileSync(join(ROOT, 'presets', `${preset}.json`), 'utf8')));
 const fragment = await encodeSpecLink(spec, { base: '' });
@@ -35,6 +35,9 @@ try {
   await page.waitForSelector('ff-sheet[data-state="done"]', { timeout: 30 * 60_000 });
   const evidence = page.locator('ff-evidence');
   await evidence.scrollIntoViewIfNeeded();
+  // Errors of a blown-up seed span decades: the log scale keeps every arm's curve readable.
+  if (process.argv.includes('--log')) await page.getByLabel('Log scale for errors').check();
+  await page.waitForTimeout(300);
   await evidence.screenshot({ path: join(OUT, 'evidence.png') });
   await page.getByRole('button', { name: /Probe the networks/ }).click();
   await page.waitForSelector('ff-probes ff-audit-table tbody tr', { timeout: 10 * 60_000 });
