@@ -6,12 +6,15 @@ import type { ExperimentSpec } from './spec.ts';
 import type { RunResult } from './run.ts';
 import { compareRuns, type Comparison } from './compare.ts';
 import { canonicalJson, sha256Hex } from '../util/hash.ts';
+// A named JSON import works under tsx, esbuild (the worker bundle) and Vite; the bundlers inline just this string.
+import { version as packageVersion } from '../../package.json';
 
 /**
- * Bumped whenever the same spec gives different numbers: 0.2.0 scores the fit gate on fresh
- * graphs, keeps weights by the preset's metric and gives weight-carrying tasks inputs in weight units.
+ * package.json's version, read at import (tsx) or build (esbuild, Vite) time. Bump it whenever
+ * the same spec gives different numbers: 0.2.0 scores the fit gate on fresh graphs, keeps weights
+ * by the preset's metric and gives weight-carrying tasks inputs in weight units.
  */
-export const ENGINE_VERSION = '0.2.0';
+export const ENGINE_VERSION: string = packageVersion;
 export const RESULTS_KIND = 'farfield-results';
 
 export interface EngineInfo {
