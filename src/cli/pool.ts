@@ -1,15 +1,20 @@
 /**
  * The Node host: runs plans on a pool of worker_threads, one run per worker at
- * a time. A worker that throws marks its run failed and carries on; a worker
- * that dies marks its run failed and is replaced, so the others finish.
+ * a time. The pool's rules (a worker that throws marks its run failed and
+ * carries on; one that dies marks its run failed and is replaced; workers that
+ * die before they are ready are retried a bounded number of times, then every
+ * remaining run fails with the reason) live in
+ * src/experiment/worker-pool-core.ts, shared with the sheet; this file is the
+ * worker_threads adapter.
  */
 import { Worker } from 'node:worker_threads';
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
-import type { BackendName, EngineInfo } from '../engine/backend.ts';
-import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
+import type { BackendName } from '../engine/backend.ts';
+import type { FromWorker } from '../../workers/protocol.ts';
 import { failedResult } from '../experiment/run-record.ts';
+import { runPoolCore, type CorePoolHandle, type FaultKind, type PoolEvents, type PoolWorker } from '../experiment/worker-pool-core.ts';
 import { nodeWorkerEntry } from './worker-bundle.ts';
 
 /**
@@ -22,120 +27,50 @@ import { nodeWorkerEntry } from './worker-bundle.ts';
  */
 const YOUNG_GENERATION_MB = 96;
 
-export interface PoolEvents {
-  onStart?: (plan: RunPlan) => void;
-  onProgress?: (plan: RunPlan, step: number, totalSteps: number, loss: number) => void;
-  onResult?: (result: RunResult) => void;
-  onReady?: (info: EngineInfo) => void;
-}
+export type { PoolEvents };
 
 export interface PoolOptions {
   workers: number;
   backend?: BackendName;
   events?: PoolEvents;
   /** Test hook: inject a fault into these run indices. */
-  faults?: ReadonlyMap<number, 'throw' | 'exit'>;
+  faults?: ReadonlyMap<number, FaultKind>;
 }
 
 export { failedResult };
 
+/** Adapt a worker_thread to the pool's interface. */
+export function wrapNodeWorker(worker: Worker): PoolWorker {
+  return {
+    send: (message) => worker.postMessage(message),
+    terminate: () => worker.terminate(),
+    listen(onMessage, onDeath) {
+      worker.on('message', (message: FromWorker) => onMessage(message));
+      worker.on('error', (error: Error) => onDeath(`worker crashed: ${error.message}`));
+      worker.on('messageerror', (error: Error) => onDeath(`worker crashed: a message could not be read (${error.message})`));
+      worker.on('exit', (code: number) => onDeath(`worker exited with code ${code}`));
+    },
+  };
+}
+
 export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options: PoolOptions): { done: Promise<RunResult[]>; cancel: () => Promise<void> } {
-  const queue = [...plans];
-  const results: RunResult[] = [];
-  const live = new Set<Worker>();
+  let pool: CorePoolHandle | null = null;
   let cancelled = false;
-  let resolveAll: (r: RunResult[]) => void = () => {};
-  let rejectAll: (e: Error) => void = () => {};
-  const done = new Promise<RunResult[]>((res, rej) => {
-    resolveAll = res;
-    rejectAll = rej;
-  });
-  const wanted = Math.max(1, Math.min(options.workers, plans.length));
-  let active = 0;
-
-  const finishIfIdle = () => {
-    if (active === 0 && (queue.length === 0 || cancelled)) resolveAll(results.sort((a, b) => a.index - b.index));
-  };
-
-  const record = (result: RunResult) => {
-    results.push(result);
-    options.events?.onResult?.(result);
-  };
-
-  let entry: URL | null = null;
-  const spawn = () => {
-    if (cancelled || queue.length === 0 || entry == null) return;
-    active++;
-    const worker = new Worker(entry, { resourceLimits: { maxYoungGenerationSizeMb: YOUNG_GENERATION_MB } });
-    live.add(worker);
-    let current: RunPlan | null = null;
-    let settled = false;
-    const send = (message: ToWorker) => worker.postMessage(message);
-    const next = () => {
-      current = cancelled ? null : queue.shift() ?? null;
-      if (!current) {
-        settled = true;
-        live.delete(worker);
-        void worker.terminate();
-        active--;
-        finishIfIdle();
-        return;
-      }
-      options.events?.onStart?.(current);
-      const fault = options.faults?.get(current.index);
-      if (fault) send({ type: 'crash', id: current.index, how: fault });
-      else send({ type: 'run', id: current.index, spec, plan: current });
-    };
-    worker.on('message', (message: FromWorker) => {
-      switch (message.type) {
-        case 'ready':
-          options.events?.onReady?.({ backend: message.backend, threads: message.threads, simd: message.simd });
-          next();
-          return;
-        case 'progress':
-          if (current) options.events?.onProgress?.(current, message.step, message.totalSteps, message.loss);
-          return;
-        case 'done':
-          record(message.result);
-          next();
-          return;
-        case 'error':
-          if (current) record(failedResult(current, `worker error: ${message.message}`));
-          else if (message.id === null) {
-            rejectAll(new Error(`worker could not start: ${message.message}`));
-            return;
-          }
-          next();
-          return;
-      }
+  // The worker entry (a bundle, built on first use) is found before any worker starts.
+  const done = plans.length === 0 ? Promise.resolve([]) : nodeWorkerEntry().then((entry) => {
+    if (cancelled) return [];
+    pool = runPoolCore(spec, plans, {
+      workers: options.workers,
+      init: { type: 'init', backend: options.backend ?? 'wasm' },
+      createWorker: () => wrapNodeWorker(new Worker(entry, { resourceLimits: { maxYoungGenerationSizeMb: YOUNG_GENERATION_MB } })),
+      events: options.events,
+      faults: options.faults,
     });
-    const died = (why: string) => {
-      if (settled) return;
-      settled = true;
-      live.delete(worker);
-      if (current && !cancelled) record(failedResult(current, why));
-      active--;
-      // Replace the dead worker so the remaining runs still finish.
-      spawn();
-      finishIfIdle();
-    };
-    worker.on("error", (error: Error) => died(`worker crashed: ${error.message}`));
-    worker.on('exit', (code) => died(`worker exited with code ${code}`));
-    send({ type: 'init', backend: options.backend ?? 'wasm' });
-  };
-
-  if (plans.length === 0) resolveAll([]);
-  else {
-    void nodeWorkerEntry().then((url) => {
-      entry = url;
-      for (let i = 0; i < wanted; i++) spawn();
-      finishIfIdle();
-    }, rejectAll);
-  }
-
+    return pool.done;
+  });
   const cancel = async () => {
     cancelled = true;
-    await Promise.all([...live].map((w) => w.terminate()));
+    await pool?.cancel();
   };
   return { done, cancel };
 }

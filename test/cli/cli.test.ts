@@ -109,6 +109,23 @@ describe('farfield run', () => {
     expect(d.runs[2]!.reason).toMatch(/exited with code 3/);
   });
 
+  it('workers that throw while loading are given up after a few tries: the run settles with failed runs and the reason', () => {
+    // Test hook in workers/node-worker.ts: the worker throws before it can say 'ready'.
+    const r = spawnSync(process.execPath, [bin, 'run', tiny, '--json', '--quiet', '--workers', '2'], {
+      cwd: root,
+      encoding: 'utf8',
+      timeout: 60_000,
+      env: { ...process.env, FARFIELD_TEST_WORKER_LOAD_FAULT: 'load-fault-test' },
+    });
+    expect(r.status).toBe(0);
+    const d = JSON.parse(r.stdout) as Doc;
+    expect(d.runs).toHaveLength(4);
+    for (const run of d.runs) {
+      expect(run.status).toBe('failed');
+      expect(run.reason).toMatch(/^workers die before they are ready \(3 tries\): worker crashed: deliberate load failure \(load-fault-test\)$/);
+    }
+  });
+
   it('a diverging arm is reported as diverged, with its step, while the other arm completes', () => {
     const r = farfield('run', join(root, 'test/fixtures/diverging.json'), '--json', '--quiet');
     const d = JSON.parse(r.stdout) as Doc;
