@@ -1,6 +1,6 @@
 /** `farfield` command line: run, check, sample, and the rest; user errors print one clear message and exit 1. */
-import { parseArgs, type ParseArgsConfig } from 'node:util';
 import { SpecError } from '../experiment/spec.ts';
+import { UsageError } from './args.ts';
 import { commandRun } from './commands/run.ts';
 import { commandCheck } from './commands/check.ts';
 import { commandSample } from './commands/sample.ts';
@@ -8,8 +8,6 @@ import { commandProbe } from './commands/probe.ts';
 import { commandMerge } from './commands/merge.ts';
 import { commandBench } from './commands/bench.ts';
 import { commandShare } from './commands/share.ts';
-
-export class UsageError extends Error {}
 
 const HELP = `farfield — does this message-passing architecture keep working on larger graphs?
 
@@ -77,20 +75,4 @@ export async function main(argv: string[]): Promise<number> {
     }
     throw error;
   }
-}
-
-export function parse<const T extends NonNullable<ParseArgsConfig['options']>>(args: string[], options: T) {
-  try {
-    return parseArgs({ args, options, allowPositionals: true as const, strict: true as const });
-  } catch (error) {
-    throw new UsageError(error instanceof Error ? error.message : String(error));
-  }
-}
-
-/** Whole number within a range, or a usage error naming the flag. */
-export function intFlag(name: string, value: string | undefined, min: number, max: number): number | undefined {
-  if (value === undefined) return undefined;
-  const n = Number(value);
-  if (!Number.isInteger(n) || n < min || n > max) throw new UsageError(`--${name}: got "${value}", allowed a whole number ${min}..${max}`);
-  return n;
 }

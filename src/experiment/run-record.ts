@@ -4,7 +4,7 @@
  * page's main thread just to do so.
  */
 import type { RunPlan } from './plan.ts';
-import type { RunResult, RunStatus } from './run.ts';
+import type { RunResult, RunStatus } from './run-types.ts';
 
 /** A result with nothing measured yet: the starting point of every run, and the record of a failed one. */
 export function unmeasuredResult(plan: RunPlan, status: RunStatus = 'ok', reason?: string): RunResult {

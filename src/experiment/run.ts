@@ -11,59 +11,14 @@ import { getTask } from '../tasks/registry.ts';
 import { MessagePassingNetwork } from '../model/network.ts';
 import { columnStats, transformsFor } from '../model/transforms.ts';
 import type { FeatureTransforms } from '../train/batch.ts';
-import { train, type TrainProgress, type ValidationPoint } from '../train/trainer.ts';
+import { train, type TrainProgress } from '../train/trainer.ts';
 import { evaluateSet } from '../train/evaluate.ts';
-import type { Metrics } from '../train/metrics.ts';
 import type { TaskInstance } from '../tasks/types.ts';
-import { constantBaselines, countedTargets, type ConstantBaselines } from '../train/baselines.ts';
+import { constantBaselines, countedTargets } from '../train/baselines.ts';
 import { unmeasuredResult } from './run-record.ts';
+import type { RungResult, RunResult } from './run-types.ts';
 
-export type RunStatus = 'ok' | 'diverged' | 'failed' | 'cancelled';
-
-export interface RungResult {
-  family: string;
-  size: number;
-  scale: number;
-  metrics: Metrics;
-  /**
-   * The trivial baselines on this rung's graphs (the same for every arm of a seed): the best
-   * constant for the rung and the constant fitted on the training graphs, per metric. Absent in
-   * results recorded before baselines existed.
-   */
-  baseline?: ConstantBaselines;
-  /** What actually shifted: propagation depth of the exact algorithm and mean in-degree of message edges. */
-  depthMean: number;
-  depthMax: number;
-  meanDegree: number;
-}
-
-export interface RunResult {
-  index: number;
-  arm: string;
-  armIndex: number;
-  seed: number;
-  seedIndex: number;
-  status: RunStatus;
-  reason?: string;
-  divergedAt?: number;
-  lastFiniteLoss?: number | null;
-  stepsDone: number;
-  keptStep: number;
-  /** Validation checks during training (absent in results recorded before they were kept). */
-  validationCurve?: ValidationPoint[];
-  lossCurve: number[];
-  lossEvery: number;
-  parameters: number;
-  /**
-   * In-distribution score on fresh graphs of the training sizes that played no part in training
-   * or in choosing the kept weights (the fit gate reads its mre).
-   */
-  inDistribution: Metrics | null;
-  /** Score on the validation graphs that chose the kept weights (optimistic; for reference only). */
-  validation?: Metrics | null;
-  ladder: RungResult[];
-  seconds: number;
-}
+export type { RunStatus, RungResult, RunResult } from './run-types.ts';
 
 export interface RunHooks {
   onProgress?: (p: TrainProgress) => void;

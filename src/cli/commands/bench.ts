@@ -3,7 +3,7 @@
  * measured in one run (see bench/run-bench.ts); a readable report, or the
  * JSON document with --json.
  */
-import { parse, intFlag, UsageError } from '../main.ts';
+import { parse, intFlag, UsageError } from '../args.ts';
 
 export async function commandBench(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {

@@ -1,4 +1,4 @@
-import { parse, UsageError } from '../main.ts';
+import { parse, UsageError } from '../args.ts';
 import { loadSpec } from '../load.ts';
 import { specHash } from '../../experiment/results.ts';
 

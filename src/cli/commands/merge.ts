@@ -4,7 +4,7 @@
  * fingerprint equals that of an unsharded run of the same spec.
  */
 import { readFileSync } from 'node:fs';
-import { parse, UsageError } from '../main.ts';
+import { parse, UsageError } from '../args.ts';
 import { buildResults, RESULTS_KIND, type ResultsDocument } from '../../experiment/results.ts';
 import { validateSpec } from '../../experiment/check.ts';
 import type { RunResult } from '../../experiment/run.ts';

@@ -5,7 +5,7 @@
  * outside the training range, and the alignment trace's per-step error.
  * --json prints the whole probe document (src/experiment/probes.ts).
  */
-import { parse, UsageError, intFlag } from '../main.ts';
+import { parse, UsageError, intFlag } from '../args.ts';
 import { loadSpec } from '../load.ts';
 import { LIMITS } from '../../experiment/limits.ts';
 import { initBackend } from '../../engine/backend.ts';

@@ -1,6 +1,6 @@
 import { cpus } from 'node:os';
 import { writeFileSync, renameSync, rmSync } from 'node:fs';
-import { parse, UsageError, intFlag } from '../main.ts';
+import { parse, UsageError, intFlag } from '../args.ts';
 import { loadSpec } from '../load.ts';
 import { planRuns, shardRuns } from '../../experiment/plan.ts';
 import { buildResults, ENGINE_VERSION, specHash as hashSpec } from '../../experiment/results.ts';

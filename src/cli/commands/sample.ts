@@ -1,4 +1,4 @@
-import { parse, UsageError, intFlag } from '../main.ts';
+import { parse, UsageError, intFlag } from '../args.ts';
 import { sampleGraphs } from '../../tasks/sample.ts';
 import { LIMITS } from '../../experiment/limits.ts';
 

@@ -1,5 +1,5 @@
 /** `farfield share <preset> [--base URL] [--fingerprint HEX]`: print the share link that carries the whole spec. */
-import { parse, UsageError } from '../main.ts';
+import { parse, UsageError } from '../args.ts';
 import { loadSpec } from '../load.ts';
 import { encodeSpecLink, DEFAULT_LINK_BASE } from '../../share/link.ts';
 
