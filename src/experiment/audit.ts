@@ -11,7 +11,8 @@
  *               monoid action law        u(u(h, a), b) vs u(h, a ⊕ b)
  *   network     positive homogeneity     f(x at weight scale λ) vs λ f(x): the inputs scaled as the task's
  *                                        weight-scale rung scales them (every raw input when no task is given)
- *               replay matches forward   our step-by-step replay vs network.forward (a canary)
+ *               recorded states match    decode(last state recorded through forward's onStep) vs predict
+ *               predict                  (the inspected states are the ones behind the predictions)
  *   schedule    asynchronous replay      outputs under a random asynchronous schedule vs synchronous
  *               extra synchronous steps  control: synchronous with as many steps as the async nodes got updates
  *
@@ -35,11 +36,11 @@ import { predict } from '../train/evaluate.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import { rungScaling, scaleLikeRung, scalesEverythingTogether } from '../tasks/rung-scaling.ts';
 import { Rng } from '../util/rng.ts';
-import { processorStates, stepPlan } from './trace.ts';
+import { forwardStates, stepPlan } from './trace.ts';
 
 /** Float32 rounding allowance for checks that hold exactly in real arithmetic but involve sums. */
 export const ROUNDING_TOLERANCE = 1e-5;
-/** Homogeneity and replay run whole networks (many steps of float32 arithmetic). */
+/** Homogeneity and the schedule checks run whole networks (many steps of float32 arithmetic). */
 export const NETWORK_TOLERANCE = 1e-4;
 
 export type AuditComponent = 'aggregator' | 'update' | 'network' | 'schedule';
@@ -364,9 +365,11 @@ function readRows(t: tf.Tensor): Float32Array {
 }
 
 /**
- * Audit of a (trained) network's update function, homogeneity, replay and
+ * Audit of a (trained) network's update function, homogeneity and
  * asynchronous schedule, measured on real graphs (`instances`, e.g. the
- * validation set) and the states the network itself produces on them.
+ * validation set) and the states the network itself produces on them: one
+ * `forward` pass records every state through `onStep`, and the update checks
+ * read the sampled steps from it.
  */
 export function auditNetwork(network: MessagePassingNetwork, transforms: FeatureTransforms, instances: readonly TaskInstance[], options: NetworkAuditOptions = {}): AuditRow[] {
   const { graphs = 16, scales = [0.1, 0.5, 2, 10], schedules = 2, nodeRate = 0.5, edgeRate = 0.5, seed = 1, task } = options;
@@ -384,24 +387,27 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
   const n = batch.nodes;
   const E = batch.edges;
   const updateSubject = o.update === 'aggregate' ? `update aggregate (${o.aggregator})` : `update ${o.update}`;
+  const held: tf.Tensor[] = [];
   try {
-    // ---- replay matches forward (canary) and the states the update checks use
-    const replay = tf.tidy(() => {
-      const run = processorStates(network, tensors, plan.steps, plan.stopTolerance);
-      const last = run.states[run.states.length - 1]!;
-      const ours = network.decode(last);
-      const theirs = network.forward(tensors, { steps: plan.steps, stopTolerance: plan.stopTolerance }).prediction;
-      return { ours: readRows(ours), theirs: readRows(theirs), stepsRun: run.states.length - 1 };
-    });
+    // ---- one forward pass, every state recorded through onStep: the states the update checks use
+    const recorded = tf.tidy(() => forwardStates(network, tensors, plan.steps, plan.stopTolerance));
+    held.push(recorded.edgeTerm, recorded.prediction, ...recorded.states);
+    const evaluated = predict(network, insts, transforms, { chunk: insts.length });
+    const flat = new Float32Array(n);
+    let offset = 0;
+    for (const values of evaluated) {
+      flat.set(values, offset);
+      offset += values.length;
+    }
     rows.push(
       makeRow(
-        'replay matches forward',
+        'recorded states match predict',
         'network',
-        'step-by-step replay',
+        'states recorded through onStep',
         'relative',
-        [relativeMaxDiff(replay.ours, replay.theirs)],
+        [relativeMaxDiff(readRows(recorded.prediction), flat)],
         { kind: 'rounding', tol: NETWORK_TOLERANCE },
-        'our replay of message → aggregate → update through public methods vs network.forward; probes rely on it',
+        'decode(last state recorded through the onStep callback of network.forward, the pass whose states the update checks and probes read) vs predict (forward releasing each step, as evaluation runs it): the inspected states are the ones behind the reported predictions',
       ),
     );
 
@@ -409,7 +415,7 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
     const neutral = neutralElement(o.aggregator);
     const neutralSamples: number[] = [];
     const actionSamples: number[] = [];
-    const steps = sampleSteps(Math.max(replay.stepsRun, 1));
+    const steps = sampleSteps(Math.max(recorded.stepsRun, 1));
     const hasAll = new Float32Array(n).fill(1);
     const incoming = new Float32Array(n);
     for (const d of batch.dst) incoming[d] = 1;
@@ -422,9 +428,8 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
       const idsA = Int32Array.from(split.reduce<number[]>((acc, s, e) => (s ? (acc.push(e), acc) : acc), []));
       const idsB = Int32Array.from(split.reduce<number[]>((acc, s, e) => (!s ? (acc.push(e), acc) : acc), []));
       const result = tf.tidy(() => {
-        const run = processorStates(network, tensors, t);
-        const h = run.states[t]!;
-        const x = run.encoded;
+        const h = recorded.states[t]!;
+        const x = recorded.encoded;
         // Neutral message: the aggregator's neutral element for the "aggregate" update (combine must then leave h alone);
         // 0 with the real hasIncoming for MLP / gated updates (what a node without incoming messages gets every step).
         let neutralOut: tf.Tensor2D;
@@ -435,7 +440,7 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
           neutralOut = network.update(h, tf.zeros([n, H]) as tf.Tensor2D, x, tf.tensor2d(incoming, [n, 1]));
         }
         // Monoid action: deliver the two halves of each node's messages one after another vs their combine at once.
-        const m = network.message(h, run.edgeTerm, tensors);
+        const m = network.message(h, recorded.edgeTerm, tensors);
         const part = (ids: Int32Array, has: Float32Array) => {
           if (ids.length === 0) return tf.zeros([n, H]) as tf.Tensor2D;
           const dst = tf.tensor1d(Int32Array.from(ids, (e) => batch.dst[e]!), 'int32');
@@ -485,6 +490,7 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
     );
   } finally {
     tensors.dispose();
+    for (const t of held) t.dispose();
   }
 
   rows.push(homogeneityRow(network, transforms, insts, scales, task));
@@ -600,7 +606,7 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
   let updatesCount = 0;
   try {
     const sync = tf.tidy(() => {
-      const run = processorStates(network, tensors, T + 1);
+      const run = forwardStates(network, tensors, T + 1);
       const hT = run.states[T]!;
       const next = run.states[T + 1]!;
       const change = tf.max(tf.abs(tf.sub(next, hT))).dataSync()[0]!;
@@ -676,8 +682,8 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
     // Control: the synchronous run with as many steps as the average node got updates, vs T steps.
     const meanUpdates = Math.max(T, Math.round(updatesTotal / Math.max(updatesCount, 1)));
     const longer = tf.tidy(() => {
-      const run = processorStates(network, tensors, meanUpdates);
-      return readRows(network.decode(run.states[run.states.length - 1]!));
+      const run = network.forward(tensors, { steps: meanUpdates });
+      return readRows(run.prediction);
     });
     control.push(...graphDeviations(insts, longer, sync.y));
   } finally {

@@ -36,7 +36,7 @@ import { executeRun, type RunStatus } from './run.ts';
 import type { SeedData } from './datasets.ts';
 import { specHash } from './results.ts';
 import { auditAggregator, auditNetwork, type AuditRow } from './audit.ts';
-import { alignmentTrace, processorStates, stepPlan, traceGraph, type AlignmentTrace } from './trace.ts';
+import { alignmentTrace, forwardStates, stepPlan, traceGraph, type AlignmentTrace } from './trace.ts';
 
 const WHERE = 'experiment/probes';
 
@@ -297,7 +297,7 @@ export function messageProbe(network: MessagePassingNetwork, transforms: Feature
   let readout: number[];
   try {
     const out = tf.tidy(() => {
-      const run = processorStates(network, tensors, plan.steps, plan.stopTolerance);
+      const run = forwardStates(network, tensors, plan.steps, plan.stopTolerance);
       const hT = run.states[run.states.length - 1]!;
       const meanRows = (x: tf.Tensor2D, weight: Float32Array) => {
         const w = tf.tensor2d(weight, [weight.length, 1]);

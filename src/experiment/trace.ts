@@ -6,13 +6,9 @@
  * holds what round k of Bellman-Ford (or its task's algorithm) holds, or
  * something else that only agrees at the end.
  *
- * Also home of `processorStates`, a step-by-step replay of
- * `MessagePassingNetwork.forward` through the network's public methods
- * (encode, edgeTerm, message, update) and the aggregator registry. Probes and
- * audits need the hidden states, which `forward` does not return; the audit
- * checks that this replay reproduces `forward` (so a change to the network's
- * step semantics shows up as a failed audit row rather than silently wrong
- * probes).
+ * The hidden states come from `MessagePassingNetwork.forward` itself, through
+ * its `onStep` callback: probes, the audit and this trace read the states of
+ * the network's one forward loop, never a copy of it.
  *
  * Host-agnostic: no node: imports; everything returned is plain JSON data
  * (non-finite numbers are written as null where the algorithm has "not
@@ -22,8 +18,6 @@ import * as tf from '@tensorflow/tfjs-core';
 import type Graph from 'graphology';
 import { circular } from 'graphology-layout';
 import type { MessagePassingNetwork, NetworkInputs } from '../model/network.ts';
-import { getAggregator } from '../model/aggregators.ts';
-import { segmentCounts } from '../model/ops.ts';
 import { stepsFor } from '../model/steps.ts';
 import { makeBatch, type FeatureTransforms } from '../train/batch.ts';
 import { uploadBatch } from '../train/tensors.ts';
@@ -36,47 +30,32 @@ import { Rng } from '../util/rng.ts';
 
 const WHERE = 'experiment/trace';
 
-export interface ProcessorStates {
-  /** x̂ = encode(nodeX): the encoded inputs, also the state before step 1. */
+// A type alias, not an interface, so tf.tidy accepts it as a tensor container.
+export type ForwardStates = {
+  /** x̂ = encode(nodeX): the encoded inputs, also the state h⁰ before step 1. */
   encoded: tf.Tensor2D;
-  /** W_e ê (+ b) per edge. */
+  /** W_e ê (+ b) per edge, as the message function receives it. */
   edgeTerm: tf.Tensor2D;
-  /** [nodes, 1]: 1 where a node has at least one incoming message. */
-  hasIncoming: tf.Tensor2D;
-  /** Hidden states h⁰ (= encoded), h¹, …, hᵀ. */
+  /** Hidden states h⁰ (= encoded), h¹, …, hᵀ of the pass (T = stepsRun). */
   states: tf.Tensor2D[];
-}
+  /** The pass's own output, decode(hᵀ). */
+  prediction: tf.Tensor2D;
+  stepsRun: number;
+};
 
 /**
- * Replays `network.forward` step by step and keeps every hidden state. Same
- * operations in the same order as `forward` (message → aggregate → update),
- * including the until-stable stop rule when `stopTolerance` is given. Call
- * inside `tf.tidy`; the returned tensors are not kept.
+ * One `network.forward` pass with every hidden state recorded through its
+ * `onStep` callback (each cloned, so it outlives the step). `encoded` and
+ * `edgeTerm` are recomputed with the network's own `encode` and `edgeTerm`
+ * (the same ops on the same inputs as inside `forward`, so the same values).
+ * Call inside `tf.tidy`; the returned tensors belong to the caller's scope.
  */
-export function processorStates(network: MessagePassingNetwork, inputs: NetworkInputs, steps: number, stopTolerance?: number): ProcessorStates {
-  const aggregator = getAggregator(network.options.aggregator);
-  const temperature = network.options.aggregatorTemperature;
-  const counts = segmentCounts(inputs.dst, inputs.nodes);
-  const hasIncoming = tf.minimum(counts, 1) as tf.Tensor2D;
+export function forwardStates(network: MessagePassingNetwork, inputs: NetworkInputs, steps: number, stopTolerance?: number): ForwardStates {
   const encoded = network.encode(inputs.nodeX);
   const edgeTerm = network.edgeTerm(inputs.edgeX);
   const states: tf.Tensor2D[] = [encoded];
-  let h = encoded;
-  for (let t = 0; t < steps; t++) {
-    const m = network.message(h, edgeTerm, inputs);
-    const a = aggregator.aggregate({ messages: m, dst: inputs.dst, nodes: inputs.nodes, hasIncoming, temperature });
-    const next = network.update(h, a, encoded, hasIncoming);
-    states.push(next);
-    if (stopTolerance !== undefined) {
-      const change = tf.max(tf.abs(tf.sub(next, h))).dataSync()[0]!;
-      const size = tf.max(tf.abs(next)).dataSync()[0]!;
-      h = next;
-      if (change < stopTolerance * (1 + size)) break;
-    } else {
-      h = next;
-    }
-  }
-  return { encoded, edgeTerm, hasIncoming, states };
+  const run = network.forward(inputs, { steps, stopTolerance, onStep: (_step, state) => states.push(tf.clone(state)) });
+  return { encoded, edgeTerm, states, prediction: run.prediction, stepsRun: run.stepsRun };
 }
 
 /** The step count and stop tolerance `predict` would use for a graph of `maxNodes` nodes. */
@@ -154,7 +133,7 @@ function round6(x: number): number {
 /**
  * The alignment trace of `network` on one graph. Step k's prediction is the
  * decoded state after k steps (k = 0: decode(encode(x)), before any message),
- * computed with `forward(..., { trace: true })`; the exact column is
+ * read through `forward`'s `onStep` callback; the exact column is
  * `task.iterate(graph, instance, k)`. `steps` defaults to the network's own
  * step rule for this graph size.
  */
@@ -168,9 +147,13 @@ export function alignmentTrace(network: MessagePassingNetwork, transforms: Featu
   let stepsRun: number;
   try {
     const result = tf.tidy(() => {
-      const initial = network.decode(network.encode(tensors.nodeX));
-      const run = network.forward(tensors, { steps, trace: true, stopTolerance: options.steps === undefined ? plan.stopTolerance : undefined });
-      return { all: tf.concat([initial, ...run.trace], 1) as tf.Tensor2D, stepsRun: run.stepsRun };
+      const perStep: tf.Tensor2D[] = [network.decode(network.encode(tensors.nodeX))];
+      const run = network.forward(tensors, {
+        steps,
+        stopTolerance: options.steps === undefined ? plan.stopTolerance : undefined,
+        onStep: (_step, state) => perStep.push(network.decode(state)),
+      });
+      return { all: tf.concat(perStep, 1) as tf.Tensor2D, stepsRun: run.stepsRun };
     });
     const rows = result.all.arraySync() as number[][];
     result.all.dispose();

@@ -46,6 +46,17 @@ export interface ForwardOptions {
    * same ops run, so results are unchanged.
    */
   releaseSteps?: boolean;
+  /**
+   * Called after every step t = 1..stepsRun with the new state hᵗ ([nodes, hidden]),
+   * before the until-stable test and before any release. Inspection (probes, the
+   * audit, the alignment trace) reads the hidden states through this, so they are
+   * the states of this very loop. Ownership: the tensor belongs to `forward`; with
+   * `releaseSteps` it is disposed during the next step. Read it, or compute from it,
+   * during the call; to keep it longer, `tf.clone` it (the clone belongs to the
+   * caller's tidy scope). Tensors the callback creates are tracked by the enclosing
+   * scope, not released by `releaseSteps`. The callback must not dispose the state.
+   */
+  onStep?: (step: number, state: tf.Tensor2D) => void;
 }
 
 export interface ForwardResult {
@@ -213,6 +224,7 @@ export class MessagePassingNetwork {
       const next = options.releaseSteps ? tf.tidy(() => step(previous)) : step(previous);
       stepsRun++;
       if (options.trace) trace.push(this.decode(next));
+      options.onStep?.(stepsRun, next);
       let stable = false;
       if (options.stopTolerance !== undefined) {
         const [change, size] = tf.tidy(() => [tf.max(tf.abs(tf.sub(next, previous))).dataSync()[0]!, tf.max(tf.abs(next)).dataSync()[0]!]);

@@ -166,7 +166,7 @@ describe('network audit', () => {
     const before = tf.memory().numTensors;
     const rows = auditNetwork(net, identity, graphs(6, 9, 9), { schedules: 2 });
     expect(tf.memory().numTensors).toBe(before);
-    expect(row(rows, 'replay matches forward').worst).toBeLessThan(1e-6);
+    expect(row(rows, 'recorded states match predict').worst).toBe(0);
     const neutral = row(rows, 'neutral message');
     expect(neutral.worst).toBe(0);
     expect(neutral.pass).toBe(true);
@@ -178,6 +178,21 @@ describe('network audit', () => {
     expect(replay.worst).toBeLessThan(1e-6);
     expect(replay.pass).toBe(true);
     expect(row(rows, 'extra synchronous steps').worst).toBe(0);
+    net.dispose();
+  });
+
+  it('the update checks read every sampled step from one forward pass (not one rerun from step 0 per sampled step)', () => {
+    const net = bellmanFordBiasFree();
+    const calls: number[] = [];
+    const forward = net.forward.bind(net);
+    net.forward = (inputs, options) => {
+      if (options.onStep) calls.push(options.steps);
+      return forward(inputs, options);
+    };
+    const rows = auditNetwork(net, identity, graphs(3, 9, 9), { schedules: 1 });
+    // One recorded pass for the update checks (T = 9 steps, sampled at 0, 1, 4, 8) and one of T + 1 steps for the schedule rows.
+    expect(calls).toEqual([9, 10]);
+    expect(row(rows, 'monoid action').samples).toBeGreaterThan(0);
     net.dispose();
   });
 

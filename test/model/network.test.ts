@@ -270,3 +270,75 @@ describe('memory', () => {
     net.dispose();
   });
 });
+
+describe('forward onStep: the hidden states of the one forward loop', () => {
+  const configs: Array<[string, Partial<ModelOptions>]> = [
+    ['mlp update, max', { aggregator: 'max' }],
+    ['gated update, sum', { aggregator: 'sum', update: 'gated' }],
+    ['aggregate update, min-plus messages', { aggregator: 'min', update: 'aggregate', message: 'min-plus' }],
+  ];
+  for (const [label, overrides] of configs) {
+    it(`${label}: called once per step with the new state; decode(last) is the prediction; results bit-identical with and without it`, () => {
+      const net = new MessagePassingNetwork(model(overrides), 1, 1, new Rng(5));
+      for (const [name, v] of net.params.vars) if (/w2/.test(name)) net.params.set(name, Array.from({ length: v.size }, (_, i) => Math.sin(i + 1) * 0.3));
+      const t = uploadBatch(makeBatch(instances(2, 6, 7), identity));
+      const before = tf.memory().numTensors;
+      try {
+        const out = tf.tidy(() => {
+          const plain = net.forward(t, { steps: 5, trace: true });
+          const seen: number[] = [];
+          const decodedStates: tf.Tensor2D[] = [];
+          let last: tf.Tensor2D | null = null;
+          const watched = net.forward(t, {
+            steps: 5,
+            onStep: (step, state) => {
+              seen.push(step);
+              decodedStates.push(net.decode(state));
+              last = tf.clone(state);
+            },
+          });
+          const kept: tf.Tensor2D[] = [];
+          const released = net.forward(t, { steps: 5, releaseSteps: true, onStep: (_step, state) => kept.push(tf.clone(state)) });
+          return {
+            seen: tf.tensor1d(seen),
+            plain: plain.prediction,
+            watched: watched.prediction,
+            released: released.prediction,
+            lastDecoded: net.decode(last!),
+            trace: tf.concat(plain.trace, 1),
+            decoded: tf.concat(decodedStates, 1),
+            keptLast: net.decode(kept[kept.length - 1]!),
+            keptFirstDiffers: tf.max(tf.abs(tf.sub(kept[0]!, kept[1]!))),
+          };
+        });
+        const bits = (x: tf.Tensor) => Array.from(x.dataSync());
+        expect(bits(out.seen)).toEqual([1, 2, 3, 4, 5]);
+        const plain = bits(out.plain);
+        for (const other of [out.watched, out.released, out.lastDecoded, out.keptLast]) bits(other).forEach((v, i) => expect(Object.is(v, plain[i])).toBe(true));
+        const trace = bits(out.trace);
+        bits(out.decoded).forEach((v, i) => expect(Object.is(v, trace[i])).toBe(true));
+        // Consecutive states differ, so handing over the previous state instead of the new one would fail above.
+        expect(bits(out.keptFirstDiffers)[0]).toBeGreaterThan(0);
+        for (const x of Object.values(out)) x.dispose();
+        expect(tf.memory().numTensors).toBe(before);
+      } finally {
+        t.dispose();
+        net.dispose();
+      }
+    });
+  }
+
+  it('until-stable: onStep runs for the steps actually taken, not the cap (a Bellman-Ford network settles after its depth)', () => {
+    const net = bellmanFordNetwork();
+    const t = uploadBatch(makeBatch(instances(1, 8, 6), identity));
+    try {
+      const calls: number[] = [];
+      const stepsRun = tf.tidy(() => net.forward(t, { steps: 200, stopTolerance: 1e-3, onStep: (step) => calls.push(step) }).stepsRun);
+      expect(stepsRun).toBeLessThan(200);
+      expect(calls).toEqual(Array.from({ length: stepsRun }, (_, i) => i + 1));
+    } finally {
+      t.dispose();
+      net.dispose();
+    }
+  });
+});
