@@ -5,7 +5,7 @@
  * Separate from protocol.ts so the run pool's messages stay as they are.
  */
 import type { ExperimentSpec } from '../src/experiment/spec.ts';
-import type { ProbeDocument } from '../src/experiment/probes.ts';
+import type { ProbeDocument } from '../src/inspect/probe-document.ts';
 
 export type ToProbeWorker =
   | { type: 'init'; wasmPaths?: string | Record<string, string> }

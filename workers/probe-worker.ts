@@ -12,7 +12,7 @@ import { env } from '@tensorflow/tfjs-core';
 // Loading the backend module registers its flags, so the one below can be set.
 import '@tensorflow/tfjs-backend-wasm';
 import { initBackend } from '../src/engine/backend.ts';
-import { probeDocument } from '../src/experiment/probes.ts';
+import { probeDocument } from '../src/inspect/probe-document.ts';
 import type { FromProbeWorker, ToProbeWorker } from './probe-protocol.ts';
 
 interface WorkerScope {

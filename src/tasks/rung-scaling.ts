@@ -8,7 +8,7 @@
  * durations times c, to float rounding where they are recomputed, e.g.
  * distances from scaled positions).
  *
- * Used by the audit (experiment/audit.ts) to measure homogeneity under the
+ * Used by the audit (inspect/audit.ts) to measure homogeneity under the
  * rung's own transformation: when every input and the target have power 1, a
  * positively homogeneous network (f(λx) = λ f(x)) keeps its error relative
  * across the rung; when not (hop-count, descendant-count: nothing scales;

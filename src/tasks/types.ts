@@ -1,9 +1,7 @@
-import type { AggregatorName } from '../model/catalogue.ts';
 import type Graph from 'graphology';
 import type { Rng } from '../util/rng.ts';
 
-/** An aggregator's name, from the model catalogue (a plain data file with no tfjs; the one list of names). */
-export type AggregatorId = AggregatorName;
+export type AggregatorId = 'sum' | 'mean' | 'max' | 'min' | 'smooth-max' | 'smooth-min';
 
 /**
  * Everything the network sees and is scored on for one graph. Message edges are

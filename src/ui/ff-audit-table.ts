@@ -5,7 +5,7 @@
  * where the architecture promises nothing and the number is only reported).
  */
 import { LitElement, css, html, nothing } from 'lit';
-import type { AuditRow } from '../experiment/audit.ts';
+import type { AuditRow } from '../inspect/audit.ts';
 import { controls } from './styles.ts';
 import { num } from './format.ts';
 

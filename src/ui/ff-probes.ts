@@ -11,7 +11,8 @@
  */
 import { LitElement, css, html, nothing } from 'lit';
 import type { ExperimentSpec } from '../experiment/spec.ts';
-import type { ArmProbes, Probe, ProbeDocument, ProbeKind } from '../experiment/probes.ts';
+import type { ArmProbes, ProbeDocument } from '../inspect/probe-document.ts';
+import type { Probe, ProbeKind } from '../inspect/probe.ts';
 import { ProbeController } from './probe-controller.ts';
 import { probeFigure, type ArmProbe } from './probe-plots.ts';
 import { armColor } from './palette.ts';

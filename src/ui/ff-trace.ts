@@ -6,7 +6,7 @@
  * Exportable like the other figures (SVG / PNG of the graph at the chosen k).
  */
 import { LitElement, css, html, nothing, svg, type PropertyValues } from 'lit';
-import type { AlignmentTrace } from '../experiment/trace.ts';
+import type { AlignmentTrace } from '../inspect/trace.ts';
 import { traceFigure } from './probe-plots.ts';
 import { controls, figureFrame } from './styles.ts';
 import { emit } from './events.ts';

@@ -6,7 +6,7 @@
  */
 import type { ReactiveController, ReactiveControllerHost } from 'lit';
 import type { ExperimentSpec } from '../experiment/spec.ts';
-import type { ProbeDocument } from '../experiment/probes.ts';
+import type { ProbeDocument } from '../inspect/probe-document.ts';
 import type { FromProbeWorker, ToProbeWorker } from '../../workers/probe-protocol.ts';
 import { wasmPaths } from './wasm-paths.ts';
 

@@ -6,8 +6,8 @@
  * so an exported file looks the same outside the page.
  */
 import * as Plot from '@observablehq/plot';
-import type { Probe, ProbePoint } from '../experiment/probes.ts';
-import type { AlignmentTrace } from '../experiment/trace.ts';
+import type { Probe, ProbePoint } from '../inspect/probe.ts';
+import type { AlignmentTrace } from '../inspect/trace.ts';
 import { CARD, INK, MUTED, RULE, TRAIN_BAND } from './palette.ts';
 import { FIGURE_FONT } from './plots.ts';
 import { num } from './format.ts';

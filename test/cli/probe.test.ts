@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import type { ProbeDocument } from '../../src/experiment/probes.ts';
+import type { ProbeDocument } from '../../src/inspect/probe-document.ts';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
 const bin = join(root, 'bin/farfield.mjs');

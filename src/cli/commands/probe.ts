@@ -9,9 +9,10 @@ import { parse, UsageError, intFlag } from '../args.ts';
 import { loadSpec } from '../load.ts';
 import { LIMITS } from '../../experiment/limits.ts';
 import { initBackend } from '../../engine/backend.ts';
-import { probeDocument, probeSummary, type ArmProbes, type Probe, type ProbeDocument } from '../../experiment/probes.ts';
-import type { AuditRow } from '../../experiment/audit.ts';
-import type { AlignmentTrace } from '../../experiment/trace.ts';
+import { probeDocument, type ArmProbes, type ProbeDocument } from '../../inspect/probe-document.ts';
+import { probeSummary, type Probe } from '../../inspect/probe.ts';
+import type { AuditRow } from '../../inspect/audit.ts';
+import type { AlignmentTrace } from '../../inspect/trace.ts';
 import { num, renderTable } from '../format.ts';
 
 const USAGE = 'usage: farfield probe <preset.json | link> [--json] [--seeds N] [--arms a,b]';

@@ -8,7 +8,7 @@
  *
  * The hidden states come from `MessagePassingNetwork.forward` itself, through
  * its `onStep` callback: probes, the audit and this trace read the states of
- * the network's one forward loop, never a copy of it.
+ * the network's one forward loop, never a copy of it (see states.ts).
  *
  * Host-agnostic: no node: imports; everything returned is plain JSON data
  * (non-finite numbers are written as null where the algorithm has "not
@@ -17,52 +17,18 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type Graph from 'graphology';
 import { circular } from 'graphology-layout';
-import type { MessagePassingNetwork, NetworkInputs } from '../model/network.ts';
-import { stepsFor } from '../model/steps.ts';
+import type { MessagePassingNetwork } from '../model/network.ts';
 import { makeBatch, type FeatureTransforms } from '../train/batch.ts';
 import { uploadBatch } from '../train/tensors.ts';
 import { buildInstance } from '../tasks/sample.ts';
 import { getFamily } from '../graphs/registry.ts';
 import { toPlainGraph } from '../graphs/plain.ts';
 import type { Task, TaskInstance } from '../tasks/types.ts';
-import type { ExperimentSpec } from './spec.ts';
+import type { ExperimentSpec } from '../experiment/spec.ts';
 import { Rng } from '../util/rng.ts';
+import { stepPlan } from './states.ts';
 
-const WHERE = 'experiment/trace';
-
-// A type alias, not an interface, so tf.tidy accepts it as a tensor container.
-export type ForwardStates = {
-  /** x̂ = encode(nodeX): the encoded inputs, also the state h⁰ before step 1. */
-  encoded: tf.Tensor2D;
-  /** W_e ê (+ b) per edge, as the message function receives it. */
-  edgeTerm: tf.Tensor2D;
-  /** Hidden states h⁰ (= encoded), h¹, …, hᵀ of the pass (T = stepsRun). */
-  states: tf.Tensor2D[];
-  /** The pass's own output, decode(hᵀ). */
-  prediction: tf.Tensor2D;
-  stepsRun: number;
-};
-
-/**
- * One `network.forward` pass with every hidden state recorded through its
- * `onStep` callback (each cloned, so it outlives the step). `encoded` and
- * `edgeTerm` are recomputed with the network's own `encode` and `edgeTerm`
- * (the same ops on the same inputs as inside `forward`, so the same values).
- * Call inside `tf.tidy`; the returned tensors belong to the caller's scope.
- */
-export function forwardStates(network: MessagePassingNetwork, inputs: NetworkInputs, steps: number, stopTolerance?: number): ForwardStates {
-  const encoded = network.encode(inputs.nodeX);
-  const edgeTerm = network.edgeTerm(inputs.edgeX);
-  const states: tf.Tensor2D[] = [encoded];
-  const run = network.forward(inputs, { steps, stopTolerance, onStep: (_step, state) => states.push(tf.clone(state)) });
-  return { encoded, edgeTerm, states, prediction: run.prediction, stepsRun: run.stepsRun };
-}
-
-/** The step count and stop tolerance `predict` would use for a graph of `maxNodes` nodes. */
-export function stepPlan(network: MessagePassingNetwork, maxNodes: number): { steps: number; stopTolerance?: number } {
-  const rule = network.options.steps;
-  return { steps: stepsFor(rule, maxNodes), stopTolerance: rule.rule === 'until-stable' ? rule.tolerance : undefined };
-}
+const WHERE = 'inspect/trace';
 
 export interface TraceStep {
   /** Message-passing steps taken (0: decoded encoding, before any message). */

@@ -26,7 +26,8 @@
  * becomes null in JSON).
  */
 import * as tf from '@tensorflow/tfjs-core';
-import type { AggregatorName } from './spec.ts';
+import type { AggregatorName } from '../experiment/spec.ts';
+import { mean } from '../experiment/statistics.ts';
 import type { MessagePassingNetwork, NetworkInputs } from '../model/network.ts';
 import { getAggregator, type Aggregator } from '../model/aggregators.ts';
 import { gatherRows } from '../model/ops.ts';
@@ -36,7 +37,7 @@ import { predict } from '../train/evaluate.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import { rungScaling, scaleLikeRung, scalesEverythingTogether } from '../tasks/rung-scaling.ts';
 import { Rng } from '../util/rng.ts';
-import { forwardStates, stepPlan } from './trace.ts';
+import { forwardStates, stepPlan } from './states.ts';
 
 /** Float32 rounding allowance for checks that hold exactly in real arithmetic but involve sums. */
 export const ROUNDING_TOLERANCE = 1e-5;
@@ -374,7 +375,7 @@ function readRows(t: tf.Tensor): Float32Array {
 export function auditNetwork(network: MessagePassingNetwork, transforms: FeatureTransforms, instances: readonly TaskInstance[], options: NetworkAuditOptions = {}): AuditRow[] {
   const { graphs = 16, scales = [0.1, 0.5, 2, 10], schedules = 2, nodeRate = 0.5, edgeRate = 0.5, seed = 1, task } = options;
   const insts = instances.slice(0, graphs);
-  if (insts.length === 0) throw new Error('experiment/audit: auditNetwork needs at least one graph');
+  if (insts.length === 0) throw new Error('inspect/audit: auditNetwork needs at least one graph');
   const o = network.options;
   const agg = getAggregator(o.aggregator);
   const tau = o.aggregatorTemperature;
@@ -718,4 +719,21 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
         'how much of the asynchronous deviation extra updates alone explain',
     ),
   ];
+}
+
+/** Per check: mean of the means, worst of the worsts, pass only if every seed passed (null if any seed promised nothing). */
+export function meanAudit(runs: readonly AuditRow[][]): AuditRow[] {
+  const first = runs[0];
+  if (!first) return [];
+  return first.map((row, i) => {
+    const same = runs.map((r) => r[i]).filter((r): r is AuditRow => r !== undefined && r.check === row.check);
+    const passes = same.map((r) => r.pass);
+    return {
+      ...row,
+      mean: mean(same.map((r) => r.mean)),
+      worst: Math.max(...same.map((r) => r.worst)),
+      samples: same.reduce((a, r) => a + r.samples, 0),
+      pass: passes.some((p) => p === null) ? null : passes.every((p) => p === true),
+    };
+  });
 }

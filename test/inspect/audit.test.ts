@@ -5,7 +5,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend } from '../../src/engine/backend.ts';
-import { auditAggregator, auditNetwork, neutralElement, type AuditRow } from '../../src/experiment/audit.ts';
+import { auditAggregator, auditNetwork, neutralElement, type AuditRow } from '../../src/inspect/audit.ts';
 import { MessagePassingNetwork } from '../../src/model/network.ts';
 import { modelSchema, type ModelOptions } from '../../src/experiment/spec.ts';
 import type { FeatureTransforms } from '../../src/train/batch.ts';

@@ -6,7 +6,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import Graph from 'graphology';
 import { initBackend } from '../../src/engine/backend.ts';
-import { alignmentTrace, traceGraph, traceNodes } from '../../src/experiment/trace.ts';
+import { alignmentTrace, traceGraph, traceNodes } from '../../src/inspect/trace.ts';
 import type { FeatureTransforms } from '../../src/train/batch.ts';
 import { shortestPath } from '../../src/tasks/shortest-path.ts';
 import { Rng } from '../../src/util/rng.ts';

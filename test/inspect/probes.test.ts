@@ -6,7 +6,11 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend } from '../../src/engine/backend.ts';
-import { DEFAULT_SCALES, lengthProbe, meanAudit, meanProbe, messageProbe, probeSummary, scaleProbe, type Probe } from '../../src/experiment/probes.ts';
+import { meanAudit } from '../../src/inspect/audit.ts';
+import { meanProbe, probeSummary, type Probe } from '../../src/inspect/probe.ts';
+import { DEFAULT_SCALES, scaleProbe } from '../../src/inspect/scale-sweep.ts';
+import { lengthProbe } from '../../src/inspect/length-sweep.ts';
+import { messageProbe } from '../../src/inspect/message-probe.ts';
 import { makeSeedData } from '../../src/experiment/datasets.ts';
 import type { FeatureTransforms } from '../../src/train/batch.ts';
 import { tinySpec, bellmanFordNetwork } from '../helpers.ts';
