@@ -6,15 +6,22 @@
  */
 import { z } from 'zod';
 import { LIMITS } from './limits.ts';
+import { ACTIVATION_NAMES, AGGREGATOR_NAMES, MESSAGE_NAMES, STEP_RULE_NAMES, TRANSFORM_NAMES, UPDATE_NAMES } from '../model/catalogue.ts';
+import type { ModelOptions, StepRule } from '../model/options.ts';
+import type { Budget, MetricName, Schedule } from '../train/options.ts';
+
+export type { AggregatorName, MessageName, UpdateName, TransformName, ModelOptions, StepRule } from '../model/options.ts';
+export type { Budget, MetricName, Schedule } from '../train/options.ts';
 
 export const SPEC_VERSION = 1;
 
-export const AGGREGATORS = ['sum', 'mean', 'max', 'min', 'smooth-max', 'smooth-min'] as const;
-export const MESSAGES = ['mlp', 'min-plus', 'max-plus', 'smooth-min-plus', 'smooth-max-plus'] as const;
-export const UPDATES = ['mlp', 'gated', 'aggregate'] as const;
-export const ACTIVATIONS = ['relu', 'leaky-relu'] as const;
-export const TRANSFORMS = ['identity', 'log1p', 'reciprocal', 'inverse-square', 'square', 'sqrt', 'standardize'] as const;
-export const STEP_RULES = ['nodes', 'fixed', 'proportional', 'until-stable'] as const;
+/** The model's names come from the model catalogue (src/model/catalogue.ts), in its order. */
+export const AGGREGATORS = AGGREGATOR_NAMES;
+export const MESSAGES = MESSAGE_NAMES;
+export const UPDATES = UPDATE_NAMES;
+export const ACTIVATIONS = ACTIVATION_NAMES;
+export const TRANSFORMS = TRANSFORM_NAMES;
+export const STEP_RULES = STEP_RULE_NAMES;
 export const METRICS = ['mae', 'mre', 'miss'] as const;
 export const LOSSES = ['huber', 'mse'] as const;
 export const SCHEDULES = ['constant', 'warmup-cosine'] as const;
@@ -244,16 +251,23 @@ export const specSchema = z
 
 export type SpecInput = z.input<typeof specSchema>;
 export type ExperimentSpec = z.output<typeof specSchema>;
-export type ModelOptions = z.output<typeof modelSchema>;
-export type StepRule = z.output<typeof stepRuleSchema>;
 export type ArmSpec = z.output<typeof armSchema>;
-export type AggregatorName = (typeof AGGREGATORS)[number];
-export type MessageName = (typeof MESSAGES)[number];
-export type UpdateName = (typeof UPDATES)[number];
-export type TransformName = (typeof TRANSFORMS)[number];
-export type MetricName = (typeof METRICS)[number];
-export type Schedule = z.output<typeof scheduleSchema>;
-export type Budget = ExperimentSpec['budget'];
+
+/**
+ * Type-level check: what the schema produces is exactly what the model and
+ * training layers take (their own plain types in src/model/options.ts and
+ * src/train/options.ts), so neither needs to import this file. A field added
+ * on one side only fails to compile here.
+ */
+type Same<A, B> = (<T>() => T extends A ? 1 : 2) extends <T>() => T extends B ? 1 : 2 ? true : false;
+type Holds<T extends true> = T;
+export type SchemaMatchesLayers = [
+  Holds<Same<z.output<typeof modelSchema>, ModelOptions>>,
+  Holds<Same<z.output<typeof stepRuleSchema>, StepRule>>,
+  Holds<Same<z.output<typeof scheduleSchema>, Schedule>>,
+  Holds<Same<ExperimentSpec['budget'], Budget>>,
+  Holds<Same<(typeof METRICS)[number], MetricName>>,
+];
 
 /** The training switches in force for one arm: the arm's own where it states them, else the budget's. */
 export interface ArmTraining {

@@ -1,6 +1,8 @@
 /**
  * Aggregators: how a node combines its incoming messages. Each is a small named
- * unit in one registry, so adding one is one entry here plus its test.
+ * unit in one registry; its facts (hint, temperature, neutral element,
+ * idempotence, homogeneity) are its record in catalogue.ts, read here, so adding
+ * one is its implementation here, one catalogue record and its test.
  *
  * Equations (m_e: message on edge e, N(v): edges arriving at v, τ: temperature):
  *   sum         Σ_{e∈N(v)} m_e
@@ -15,7 +17,7 @@
  * the "aggregate" update; there a node with no incoming messages keeps its state.
  */
 import * as tf from '@tensorflow/tfjs-core';
-import type { AggregatorName } from '../experiment/spec.ts';
+import { aggregatorRecord, type AggregatorName } from './catalogue.ts';
 import { gatherRows, segmentMax, segmentMean, segmentMin, segmentSum } from './ops.ts';
 
 export interface AggregateInput {
@@ -29,9 +31,9 @@ export interface AggregateInput {
 
 export interface Aggregator {
   name: AggregatorName;
-  /** Whether a ⊕ a = a holds exactly (an audit expectation). */
+  /** Whether a ⊕ a = a holds exactly (an audit expectation); from the catalogue record. */
   idempotent: boolean;
-  /** Whether f(λx) = λ f(x) for λ > 0. */
+  /** Whether f(λx) = λ f(x) for λ > 0; from the catalogue record. */
   homogeneous: boolean;
   aggregate(input: AggregateInput): tf.Tensor2D;
   combine(a: tf.Tensor2D, b: tf.Tensor2D, temperature: number): tf.Tensor2D;
@@ -57,50 +59,40 @@ function smoothMaxPair(a: tf.Tensor2D, b: tf.Tensor2D, tau: number): tf.Tensor2D
   return tf.add(peak, tf.mul(tf.log(s), tau)) as tf.Tensor2D;
 }
 
+type Implementation = Pick<Aggregator, 'aggregate' | 'combine'>;
+
+/** One registry entry: the implementation, with the facts read from the aggregator's catalogue record. */
+function entry(name: AggregatorName, implementation: Implementation): Aggregator {
+  const { idempotent, homogeneous } = aggregatorRecord(name);
+  return { name, idempotent, homogeneous, ...implementation };
+}
+
 export const AGGREGATOR_REGISTRY: Record<AggregatorName, Aggregator> = {
-  sum: {
-    name: 'sum',
-    idempotent: false,
-    homogeneous: true,
+  sum: entry('sum', {
     aggregate: ({ messages, dst, nodes }) => segmentSum(messages, dst, nodes),
     combine: (a, b) => tf.add(a, b),
-  },
-  mean: {
-    name: 'mean',
-    idempotent: true,
-    homogeneous: true,
+  }),
+  mean: entry('mean', {
     aggregate: ({ messages, dst, nodes }) => segmentMean(messages, dst, nodes),
     combine: (a, b) => tf.mul(tf.add(a, b), 0.5),
-  },
-  max: {
-    name: 'max',
-    idempotent: true,
-    homogeneous: true,
+  }),
+  max: entry('max', {
     aggregate: ({ messages, dst, nodes }) => segmentMax(messages, dst, nodes),
     combine: (a, b) => tf.maximum(a, b),
-  },
-  min: {
-    name: 'min',
-    idempotent: true,
-    homogeneous: true,
+  }),
+  min: entry('min', {
     aggregate: ({ messages, dst, nodes }) => segmentMin(messages, dst, nodes),
     combine: (a, b) => tf.minimum(a, b),
-  },
-  'smooth-max': {
-    name: 'smooth-max',
-    idempotent: false,
-    homogeneous: false,
+  }),
+  'smooth-max': entry('smooth-max', {
     aggregate: ({ messages, dst, nodes, hasIncoming, temperature }) => smoothMaxSegments(messages, dst, nodes, hasIncoming, temperature),
     combine: (a, b, tau) => smoothMaxPair(a, b, tau),
-  },
-  'smooth-min': {
-    name: 'smooth-min',
-    idempotent: false,
-    homogeneous: false,
+  }),
+  'smooth-min': entry('smooth-min', {
     aggregate: ({ messages, dst, nodes, hasIncoming, temperature }) =>
       tf.neg(smoothMaxSegments(tf.neg(messages), dst, nodes, hasIncoming, temperature)),
     combine: (a, b, tau) => tf.neg(smoothMaxPair(tf.neg(a), tf.neg(b), tau)),
-  },
+  }),
 };
 
 export function getAggregator(name: AggregatorName): Aggregator {

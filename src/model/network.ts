@@ -19,7 +19,7 @@
  * max/min, hard semirings absent) the whole map is positively homogeneous.
  */
 import * as tf from '@tensorflow/tfjs-core';
-import type { ModelOptions } from '../experiment/spec.ts';
+import type { ModelOptions } from './options.ts';
 import type { Rng } from '../util/rng.ts';
 import { ParamStore } from './params.ts';
 import { getAggregator, type Aggregator } from './aggregators.ts';

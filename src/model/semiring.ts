@@ -10,8 +10,10 @@
  * τ·log K away from the hard value.
  */
 import * as tf from '@tensorflow/tfjs-core';
+import type { MessageName } from './catalogue.ts';
 
-export type SemiringKind = 'min-plus' | 'max-plus' | 'smooth-min-plus' | 'smooth-max-plus';
+/** The semiring message kinds (every message kind in the catalogue but the MLP). */
+export type SemiringKind = Exclude<MessageName, 'mlp'>;
 
 /** x: [n, K], w: [K, J] -> [n, J]. */
 export function semiringDense(x: tf.Tensor2D, w: tf.Tensor2D, kind: SemiringKind, temperature = 1): tf.Tensor2D {

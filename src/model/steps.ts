@@ -2,7 +2,7 @@
  * Step rules: how many message-passing steps a graph gets. The same rule applies
  * at training and at test sizes, so a larger graph gets more steps.
  */
-import type { StepRule } from '../experiment/spec.ts';
+import type { StepRule } from './options.ts';
 import type { Rng } from '../util/rng.ts';
 
 /** Step count for a graph of `nodes` nodes; `until-stable` returns its cap (the loop may stop earlier). */

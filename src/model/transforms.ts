@@ -12,7 +12,7 @@
  *   sqrt            sign(x) * sqrt(|x|)               (odd extension)
  *   standardize     (x - mean) / std over the training set, std floored at 1e-6
  */
-import type { TransformName } from '../experiment/spec.ts';
+import type { TransformName } from './catalogue.ts';
 
 export const RECIPROCAL_FLOOR = 1e-6;
 export const SQUARE_FLOOR = 1e-12;

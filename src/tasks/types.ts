@@ -1,7 +1,9 @@
+import type { AggregatorName } from '../model/catalogue.ts';
 import type Graph from 'graphology';
 import type { Rng } from '../util/rng.ts';
 
-export type AggregatorId = 'sum' | 'mean' | 'max' | 'min' | 'smooth-max' | 'smooth-min';
+/** An aggregator's name, from the model catalogue (a plain data file with no tfjs; the one list of names). */
+export type AggregatorId = AggregatorName;
 
 /**
  * Everything the network sees and is scored on for one graph. Message edges are

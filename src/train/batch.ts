@@ -4,7 +4,7 @@
  * many tiny ones (tiny models are dominated by per-op overhead).
  */
 import type { TaskInstance } from '../tasks/types.ts';
-import type { TransformName } from '../experiment/spec.ts';
+import type { TransformName } from '../model/catalogue.ts';
 import { applyTransform, type FeatureStats } from '../model/transforms.ts';
 
 export interface GraphBatch {

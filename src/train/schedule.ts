@@ -4,7 +4,7 @@
  * the weights settle instead of rattling around a minimum at the full rate,
  * which is what gets the in-distribution error under the fit gate in fewer steps.
  */
-import type { Schedule } from '../experiment/spec.ts';
+import type { Schedule } from './options.ts';
 
 /** The learning rate for 1-based training step `step` of `totalSteps`. */
 export function learningRateAt(base: number, schedule: Schedule | null, step: number, totalSteps: number): number {

@@ -3,7 +3,7 @@
  * clipping, a divergence guard, and best-on-validation weight keeping.
  */
 import * as tf from '@tensorflow/tfjs-core';
-import type { Budget, MetricName, Schedule } from '../experiment/spec.ts';
+import type { Budget, MetricName, Schedule } from './options.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import type { MessagePassingNetwork } from '../model/network.ts';
 import { stepsFor, trainingStepsFor } from '../model/steps.ts';

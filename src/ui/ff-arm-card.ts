@@ -8,6 +8,7 @@ import type { ArmCardView, StepKey, SwitchKey } from './spec-draft.ts';
 import { parseNumber } from './spec-draft.ts';
 import { OPTIONS, type Choice } from './catalogue.ts';
 import type { TransformName } from '../experiment/spec.ts';
+import { aggregatorRecord, messageRecord } from '../model/catalogue.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
 
@@ -255,7 +256,7 @@ export class FfArmCard extends LitElement {
           'aggregator',
           'Aggregator',
           html`${this.choice('aggregator', m.aggregator, OPTIONS.aggregator, 'Aggregator')}
-          ${m.aggregator.startsWith('smooth')
+          ${aggregatorRecord(m.aggregator).takesTemperature
             ? html`<span class="sub">τ ${this.numberInput('Aggregator temperature', m.aggregatorTemperature, 'model.aggregatorTemperature', (x) => this.switchEdit('aggregatorTemperature', x))}</span>`
             : nothing}`,
           hintOf(OPTIONS.aggregator, m.aggregator),
@@ -264,7 +265,7 @@ export class FfArmCard extends LitElement {
           'message',
           'Message',
           html`${this.choice('message', m.message, OPTIONS.message, 'Message function')}
-          ${m.message.startsWith('smooth')
+          ${messageRecord(m.message).takesTemperature
             ? html`<span class="sub">τ ${this.numberInput('Message temperature', m.messageTemperature, 'model.messageTemperature', (x) => this.switchEdit('messageTemperature', x))}</span>`
             : nothing}`,
           hintOf(OPTIONS.message, m.message),
