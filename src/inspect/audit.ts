@@ -26,7 +26,7 @@
  * becomes null in JSON).
  */
 import * as tf from '@tensorflow/tfjs-core';
-import type { AggregatorName } from '../experiment/spec.ts';
+import { MESSAGES_BY_NAME, STEP_RULES_BY_NAME, TRANSFORMS_BY_NAME, UPDATES_BY_NAME, aggregatorRecord, type AggregatorName } from '../model/catalogue.ts';
 import { mean } from '../experiment/statistics.ts';
 import type { MessagePassingNetwork, NetworkInputs } from '../model/network.ts';
 import { getAggregator, type Aggregator } from '../model/aggregators.ts';
@@ -131,12 +131,13 @@ function rowResiduals(a: Float32Array, b: Float32Array, width: number, use?: Arr
   return out;
 }
 
-function isHard(name: AggregatorName): boolean {
-  return name === 'max' || name === 'min';
+/** a ⊕ b is always a or b (max, min): no arithmetic, so identities hold exactly rather than up to rounding. */
+function isSelective(name: AggregatorName): boolean {
+  return aggregatorRecord(name).selective;
 }
 
 function isSmooth(name: AggregatorName): boolean {
-  return name === 'smooth-max' || name === 'smooth-min';
+  return aggregatorRecord(name).kind === 'smooth';
 }
 
 export interface AggregatorAuditOptions {
@@ -262,14 +263,13 @@ export function auditAggregator(name: AggregatorName, temperature: number, optio
     const aa = combineOn(agg, a, a, [nodes, channels], temperature);
     for (let i = 0; i < a.length; i++) idem.push(smooth ? Math.abs(aa[i]! - a[i]!) : Math.abs(aa[i]! - a[i]!) / Math.abs(a[i]!));
   }
-  const exactOrRounding: Expect = isHard(name) ? { kind: 'zero' } : { kind: 'rounding', tol: ROUNDING_TOLERANCE };
+  const exactOrRounding: Expect = isSelective(name) ? { kind: 'zero' } : { kind: 'rounding', tol: ROUNDING_TOLERANCE };
   const tauLog2 = temperature * Math.LN2;
-  const idemExpect: Expect =
-    name === 'sum'
-      ? { kind: 'nonzero', label: 'not 0 (a ⊕ a = 2a: exactly 1)' }
-      : smooth
-        ? { kind: 'value', value: tauLog2, tol: ROUNDING_TOLERANCE * (1 + tauLog2) * 4, label: `exactly τ·log 2 = ${Number(tauLog2.toPrecision(4))}` }
-        : { kind: 'zero' };
+  const idemExpect: Expect = aggregatorRecord(name).idempotent
+    ? { kind: 'zero' }
+    : smooth
+      ? { kind: 'value', value: tauLog2, tol: ROUNDING_TOLERANCE * (1 + tauLog2) * 4, label: `exactly τ·log 2 = ${Number(tauLog2.toPrecision(4))}` }
+      : { kind: 'nonzero', label: 'not 0 (a ⊕ a = 2a: exactly 1)' };
   const subject = smooth ? `${name} (τ = ${temperature})` : name;
   return [
     makeRow('permutation invariance', 'aggregator', subject, 'relative', perm, exactOrRounding, 'per trial: ‖⊕(shuffled edges) − ⊕(edges)‖∞ / ‖⊕(edges)‖∞'),
@@ -296,20 +296,9 @@ export function auditAggregator(name: AggregatorName, temperature: number, optio
   ];
 }
 
-/** The neutral element of `combine` for the "aggregate" update; null for mean (the midpoint has none). */
+/** The neutral element of `combine` for the "aggregate" update; null for mean (the midpoint has none). From the catalogue. */
 export function neutralElement(name: AggregatorName): number | null {
-  switch (name) {
-    case 'sum':
-      return 0;
-    case 'max':
-    case 'smooth-max':
-      return -Infinity;
-    case 'min':
-    case 'smooth-min':
-      return Infinity;
-    case 'mean':
-      return null;
-  }
+  return aggregatorRecord(name).neutral;
 }
 
 export interface NetworkAuditOptions {
@@ -352,12 +341,12 @@ export function homogeneityBreakers(network: MessagePassingNetwork, transforms: 
   const o = network.options;
   const out: string[] = [];
   if (o.bias) out.push('biases');
-  if (!getAggregator(o.aggregator).homogeneous) out.push(`${o.aggregator} aggregator`);
-  if (o.message !== 'mlp') out.push(`${o.message} messages`);
-  if (o.update === 'gated') out.push('gated update');
-  const transformsUsed = [...transforms.node, ...transforms.edge].filter((t) => t !== 'identity');
+  if (!aggregatorRecord(o.aggregator).homogeneous) out.push(`${o.aggregator} aggregator`);
+  if (!MESSAGES_BY_NAME[o.message].homogeneous) out.push(`${o.message} messages`);
+  if (!UPDATES_BY_NAME[o.update].homogeneous) out.push(`${o.update} update`);
+  const transformsUsed = [...transforms.node, ...transforms.edge].filter((t) => !TRANSFORMS_BY_NAME[t].homogeneous);
   if (transformsUsed.length) out.push(`${[...new Set(transformsUsed)].join('/')} transform`);
-  if (o.steps.rule === 'until-stable') out.push('until-stable step rule');
+  if (STEP_RULES_BY_NAME[o.steps.rule].valueDependent) out.push(`${o.steps.rule} step rule`);
   return out;
 }
 
@@ -475,7 +464,7 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
     rows.push(makeRow('neutral message leaves state', 'update', updateSubject, 'relative', neutralSamples, neutralExpect, neutralNote));
     let actionExpect: Expect;
     if (o.update !== 'aggregate') actionExpect = { kind: 'report' };
-    else if (isHard(o.aggregator)) actionExpect = { kind: 'zero' };
+    else if (isSelective(o.aggregator)) actionExpect = { kind: 'zero' };
     else if (o.aggregator === 'mean') actionExpect = { kind: 'report', label: 'not 0 (the midpoint is not associative)' };
     else actionExpect = { kind: 'rounding', tol: ROUNDING_TOLERANCE };
     rows.push(
@@ -690,7 +679,7 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
   } finally {
     tensors.dispose();
   }
-  const safe = o.update === 'aggregate' && isHard(o.aggregator);
+  const safe = o.update === 'aggregate' && isSelective(o.aggregator);
   const meanUpdates = Math.round(updatesTotal / Math.max(updatesCount, 1));
   let expect: Expect = { kind: 'report' };
   if (safe && syncAtFixedPoint) expect = { kind: 'rounding', tol: NETWORK_TOLERANCE };

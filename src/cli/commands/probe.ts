@@ -3,7 +3,7 @@
  * in-process on the first seed (or the first N), then print the algebraic
  * audit, the probe curves at a handful of points with the worst deviation
  * outside the training range, and the alignment trace's per-step error.
- * --json prints the whole probe document (src/experiment/probes.ts).
+ * --json prints the whole probe document (src/inspect/probe-document.ts).
  */
 import { parse, UsageError, intFlag } from '../args.ts';
 import { loadSpec } from '../load.ts';
