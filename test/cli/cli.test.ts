@@ -71,6 +71,11 @@ describe('farfield run', () => {
     }
   });
 
+  it('pins the fixture’s fingerprint: a change to the numbers must be deliberate (and bump the engine version)', () => {
+    // Pinned from engine 0.2.0 (specHash pinned separately in test/util/spec-hash.test.ts).
+    expect(doc.fingerprint).toBe('261a01180d42');
+  });
+
   it('is deterministic: the same spec gives the same fingerprint, on one worker or two', () => {
     const again = JSON.parse(farfield('run', tiny, '--json', '--quiet', '--workers', '1').stdout) as Doc;
     expect(again.fingerprint).toBe(doc.fingerprint);
