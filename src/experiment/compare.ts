@@ -312,10 +312,10 @@ export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): C
 
   // Every tested (rung, pair) is one test of the family: Holm keeps the chance of any false
   // "extrapolates better" at alpha however many rungs and pairs a preset has.
-  const family_ = pending.flatMap((p) => (p.rung.tested ? p.pairs : []));
-  const adjusted = holmAdjust(family_.map((t) => t.pRaw));
-  const adjustedOf = new Map(family_.map((t, k) => [t, adjusted[k]!]));
-  const adjustment: Adjustment = { method: primary ? 'primary' : 'holm', tests: family_.length };
+  const testFamily = pending.flatMap((p) => (p.rung.tested ? p.pairs : []));
+  const adjusted = holmAdjust(testFamily.map((t) => t.pRaw));
+  const adjustedOf = new Map(testFamily.map((t, k) => [t, adjusted[k]!]));
+  const adjustment: Adjustment = { method: primary ? 'primary' : 'holm', tests: testFamily.length };
   const notFitted = fit.filter((f) => f.fitted === false);
 
   const rungs: RungComparison[] = pending.map(({ rung, pairs }) => {
