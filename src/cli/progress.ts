@@ -50,9 +50,11 @@ export class ProgressLine {
     let fraction = this.done;
     for (const c of this.current.values()) fraction += c.total ? c.step / c.total : 0;
     const elapsed = (now - this.started) / 1000;
-    const eta = fraction > 0 ? (elapsed * (this.total - fraction)) / fraction : NaN;
+    // No estimate before a run has finished: start-up and warm-up make the first steps far slower
+    // than the rest, and an early extrapolation promised 1966 s for a 20 s run.
+    const eta = this.done > 0 && fraction > 0 ? (elapsed * (this.total - fraction)) / fraction : NaN;
     const running = [...this.current.values()].map((c) => `${c.plan.arm}/seed ${c.plan.seed} ${c.step}/${c.total} loss ${num(c.loss)}`).join(' · ');
-    const text = `runs ${this.done}/${this.total} done · ${elapsed.toFixed(0)} s · ETA ${Number.isFinite(eta) ? `${eta.toFixed(0)} s` : '…'}${running ? ` · ${running}` : ''}`;
+    const text = `runs ${this.done}/${this.total} done · ${elapsed.toFixed(0)} s · ETA ${Number.isFinite(eta) ? `${eta.toFixed(0)} s` : 'after the first run'}${running ? ` · ${running}` : ''}`;
     if (this.tty) {
       this.clear();
       this.stream.write(text.slice(0, (this.stream.columns ?? 120) - 1));
