@@ -17,7 +17,7 @@ export const tokens = css`
     --teal: #0b6e69;
     --teal-deep: #08524e;
     --plum: #7b2d62;
-    --ochre: #a66a00;
+    --ochre: #8a5800;
     --ochre-soft: #f3e2bd;
     --danger: #9c2f22;
     --danger-soft: #f6dcd4;
