@@ -209,7 +209,12 @@ export interface Headline {
   detail: string;
 }
 
+/** Errors spanning more decades than this switch the figures to a log scale by themselves. */
+export const AUTO_LOG_DECADES = 1.5;
+
 export interface EvidenceView {
+  /** log10(largest / smallest) over the positive errors the figures plot (curves, intervals, seeds); 0 with fewer than two. */
+  errorDecades: number;
   metric: string;
   metricLabel: string;
   trainSizes: [number, number];
@@ -508,6 +513,7 @@ export function buildEvidence(doc: ResultsDocument): EvidenceView {
     : [];
 
   return {
+    errorDecades: decadesSpanned([...curves.flatMap((c) => [c.low, c.mean, c.high]), ...seeds.map((p) => p.value)]),
     metric,
     metricLabel: metricLabel(metric),
     trainSizes: [spec.train.sizes[0], spec.train.sizes[1]],
@@ -592,4 +598,11 @@ export function headlineOf(verdicts: readonly VerdictRow[], gates: readonly Gate
       (v.n > 0 ? `${v.a} had the lower error in ${wins} of ${v.n} seed pair${v.n === 1 ? '' : 's'}` : 'no complete seed pairs yet') +
       (blown.length ? `; ${blown.join(', ')}` : ''),
   };
+}
+
+/** How many decades the positive finite values span. */
+export function decadesSpanned(values: readonly number[]): number {
+  const positive = values.filter((v) => Number.isFinite(v) && v > 0);
+  if (positive.length < 2) return 0;
+  return Math.log10(Math.max(...positive) / Math.min(...positive));
 }

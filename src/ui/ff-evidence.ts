@@ -6,7 +6,7 @@
  * evidence rows; this element only decides their width.
  */
 import { LitElement, css, html, nothing, type PropertyValues } from 'lit';
-import type { EvidenceView } from './evidence.ts';
+import { AUTO_LOG_DECADES, type EvidenceView } from './evidence.ts';
 import { differenceFigure, extrapolationFigure, seedFigure } from './plots.ts';
 import { num } from './format.ts';
 import { controls } from './styles.ts';
@@ -26,12 +26,17 @@ export class FfEvidence extends LitElement {
     evidence: { attribute: false },
     presenter: { type: Boolean },
     width: { state: true },
-    logY: { state: true },
+    logChoice: { state: true },
   };
   declare evidence: EvidenceView | null;
   declare presenter: boolean;
   declare width: number;
-  declare logY: boolean;
+  /** The reader's own choice of scale; null: automatic (log when the errors span more than AUTO_LOG_DECADES). */
+  declare logChoice: boolean | null;
+
+  private get logY(): boolean {
+    return this.logChoice ?? (this.evidence !== null && this.evidence.errorDecades > AUTO_LOG_DECADES);
+  }
 
   private figures: { curves: Element | null; diffs: Element | null; seeds: Element | null } = { curves: null, diffs: null, seeds: null };
   /** Bumped on every redraw, so a stale deferred figure is dropped. */
@@ -100,6 +105,10 @@ export class FfEvidence extends LitElement {
       .answer .reason {
         font-size: 1em;
         line-height: 1.45;
+      }
+      .auto-log {
+        color: var(--muted);
+        font-style: italic;
       }
       .legend {
         display: flex;
@@ -191,11 +200,11 @@ export class FfEvidence extends LitElement {
     this.evidence = null;
     this.presenter = false;
     this.width = 1000;
-    this.logY = false;
+    this.logChoice = null;
   }
 
   protected override willUpdate(changed: PropertyValues<this>): void {
-    if (changed.has('evidence') || changed.has('width') || changed.has('logY') || changed.has('presenter')) {
+    if (changed.has('evidence') || changed.has('width') || changed.has('logChoice') || changed.has('presenter')) {
       const view = this.evidence;
       if (!view || !hasEvidence(view)) {
         this.generation++;
@@ -265,7 +274,10 @@ export class FfEvidence extends LitElement {
         ${v.arms.map((a) => html`<span class="key"><span class="swatch" style=${`--c: ${a.color}`}></span>${a.name}</span>`)}
         <span class="train"><i></i>training sizes ${v.trainSizes[0]}–${v.trainSizes[1]} (◇ in-distribution error)</span>
         ${hasBaselines ? html`${refKey('7 4', 'best constant')}${refKey('2 3', 'training constant')}` : nothing}
-        <label><input type="checkbox" .checked=${this.logY} @change=${(e: Event) => (this.logY = (e.target as HTMLInputElement).checked)} aria-label="Log scale for errors" />log scale</label>
+        <label><input type="checkbox" .checked=${this.logY} @change=${(e: Event) => (this.logChoice = (e.target as HTMLInputElement).checked)} aria-label="Log scale for errors" />log scale</label>
+        ${this.logChoice === null && this.logY
+          ? html`<span class="auto-log" data-auto-log>on by itself: the errors span ${v.errorDecades.toFixed(1)} decades, and a linear axis would flatten every curve but the largest</span>`
+          : nothing}
       </div>
       <div class="figs">
         <ff-figure

@@ -444,3 +444,16 @@ describe('training switches and the fit gate on the sheet', () => {
     expect('schedule' in constant.budget).toBe(false);
   });
 });
+
+describe('automatic log scale', () => {
+  it('counts the decades the plotted errors span', async () => {
+    const { decadesSpanned, AUTO_LOG_DECADES } = await import('../../src/ui/evidence.ts');
+    expect(decadesSpanned([0.1, 1, 10])).toBeCloseTo(2, 12);
+    expect(decadesSpanned([0, -1, Infinity, NaN, 5])).toBe(0);
+    expect(decadesSpanned([2, 3])).toBeLessThan(AUTO_LOG_DECADES);
+    const spec = tinySpec();
+    const doc = buildResults(spec, fakeRuns(spec), engine);
+    const view = buildEvidence(doc);
+    expect(view.errorDecades).toBeCloseTo(decadesSpanned([...view.curves.flatMap((c) => [c.low, c.mean, c.high]), ...view.seeds.map((p) => p.value)]), 12);
+  });
+});
