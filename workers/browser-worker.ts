@@ -14,14 +14,19 @@
  * or hits an engine bug outside a run would), so the host sees the worker's
  * `error` event rather than a polite error message. (A worker that only closed
  * itself would give the page no signal at all.)
+ *
+ * A second test hook: a worker started under the name LOAD_FAULT_WORKER_NAME
+ * (the sheet does so only for `?fault=load` in the address) throws while
+ * loading, so it dies before it is ready and the pool's give-up rule runs.
  */
 import { env } from '@tensorflow/tfjs-core';
 // Loading the backend module registers its flags, so the one below can be set.
 import '@tensorflow/tfjs-backend-wasm';
 import { createWorkerCore } from './worker-core.ts';
-import type { FromWorker, ToWorker } from './protocol.ts';
+import { LOAD_FAULT_WORKER_NAME, type FromWorker, type ToWorker } from './protocol.ts';
 
 interface WorkerScope {
+  readonly name: string;
   postMessage(message: FromWorker): void;
   addEventListener(type: 'message', listener: (event: MessageEvent<ToWorker>) => void): void;
 }
@@ -29,6 +34,7 @@ interface WorkerScope {
 env().set('WASM_HAS_MULTITHREAD_SUPPORT', false);
 
 const scope = self as unknown as WorkerScope;
+if (scope.name === LOAD_FAULT_WORKER_NAME) throw new Error('deliberate load failure (test hook ?fault=load)');
 const handle = createWorkerCore((message) => scope.postMessage(message));
 
 scope.addEventListener('message', (event) => {

@@ -1,6 +1,7 @@
 /**
- * The worker boundary, types only: the same messages flow between the CLI and
- * its worker_threads and between the sheet and its Web Workers.
+ * The worker boundary: the same messages flow between the CLI and its
+ * worker_threads and between the sheet and its Web Workers. Types only, plus
+ * one test-hook constant.
  */
 import type { ExperimentSpec } from '../src/experiment/spec.ts';
 import type { RunPlan } from '../src/experiment/plan.ts';
@@ -18,3 +19,11 @@ export type FromWorker =
   | { type: 'progress'; id: number; step: number; totalSteps: number; loss: number }
   | { type: 'done'; id: number; result: RunResult; tensors: number }
   | { type: 'error'; id: number | null; message: string };
+
+/**
+ * Test hook: the Web Worker `name` that makes workers/browser-worker.ts throw
+ * while loading, before it can say `ready` (the pool's give-up test in real
+ * Chromium). The sheet uses it only with `?fault=load` in the page address's
+ * query, which neither a share link (after '#') nor a preset file can set.
+ */
+export const LOAD_FAULT_WORKER_NAME = 'farfield-run-load-fault';

@@ -184,10 +184,14 @@ export class FfSheet extends LitElement {
     return html`<div class="page" @ff-edit=${(e: CustomEvent) => c.edit(e.detail)}>
       ${masthead}
       <ff-notice .notice=${m.notice} @ff-dismiss=${() => c.dismissNotice()}></ff-notice>
-      ${m.faults.size
+      ${m.faults.size || m.loadFault
         ? html`<p class="banner test-mode" data-fault-banner>
-            Test mode (<code>?fault=</code> in the address): the workers of run${m.faults.size === 1 ? '' : 's'}
-            ${[...m.faults.entries()].map(([run, how]) => `${run} (${how})`).join(', ')} will fail on purpose.
+            Test mode (<code>?fault=</code> in the address):
+            ${m.loadFault ? 'every run worker will throw while loading, before it is ready' : nothing}${m.loadFault && m.faults.size ? '; ' : nothing}
+            ${m.faults.size
+              ? `the workers of run${m.faults.size === 1 ? '' : 's'} ${[...m.faults.entries()].map(([run, how]) => `${run} (${how})`).join(', ')} will fail`
+              : nothing}
+            on purpose.
           </p>`
         : nothing}
       ${m.source.kind === 'link' && !m.source.own

@@ -19,6 +19,7 @@ import { wrapWebWorker, type FaultKind, type PoolWorker } from './worker-pool.ts
 import { buildEvidence, type EvidenceView } from './evidence.ts';
 import { download, resultsCsv, resultsJson, svgToPng, svgText } from './export.ts';
 import { wasmPaths } from './wasm-paths.ts';
+import { LOAD_FAULT_WORKER_NAME } from '../../workers/protocol.ts';
 
 export type SheetSource =
   | { kind: 'preset'; id: string; file: string }
@@ -64,6 +65,8 @@ export interface SheetModel {
   workers: number;
   maxWorkers: number;
   faults: ReadonlyMap<number, FaultKind>;
+  /** Test mode `?fault=load`: every run worker throws while loading. */
+  loadFault: boolean;
 }
 
 /** `?fault=1:throw,3:exit` → run 1's worker throws, run 3's worker dies (tests of failure handling). */
@@ -78,12 +81,23 @@ export function parseFaults(search: string): Map<number, FaultKind> {
   return faults;
 }
 
+/**
+ * `?fault=load` (alone or with run faults, `?fault=load,1:throw`) → every run
+ * worker throws while loading, so the pool's give-up rule can be tested in a
+ * real browser. Read from the query only: a share link lives after '#'.
+ */
+export function parseLoadFault(search: string): boolean {
+  const value = new URLSearchParams(search).get('fault');
+  return value ? value.split(',').some((part) => part.trim() === 'load') : false;
+}
+
 function pageBase(): string {
   return `${location.origin}${location.pathname}`;
 }
 
-function createBrowserWorker(): PoolWorker {
-  return wrapWebWorker(new Worker(new URL('../../workers/browser-worker.ts', import.meta.url), { type: 'module', name: 'farfield-run' }));
+function createBrowserWorker(loadFault: boolean): PoolWorker {
+  const name = loadFault ? LOAD_FAULT_WORKER_NAME : 'farfield-run';
+  return wrapWebWorker(new Worker(new URL('../../workers/browser-worker.ts', import.meta.url), { type: 'module', name }));
 }
 
 const EDIT_SETTLE_MS = 200;
@@ -105,6 +119,7 @@ export class SheetController implements ReactiveController {
   private evidenceTimer: ReturnType<typeof setTimeout> | null = null;
   private readonly onHashChange = () => void this.openFromAddress();
   private readonly faults = parseFaults(location.search);
+  private readonly loadFault = parseLoadFault(location.search);
 
   constructor(private readonly host: ReactiveControllerHost) {
     host.addController(this);
@@ -131,12 +146,13 @@ export class SheetController implements ReactiveController {
       workers: maxWorkers,
       maxWorkers,
       faults: this.faults,
+      loadFault: this.loadFault,
     };
   }
 
   private makeRuns(store: RunStore): RunController {
     return new RunController({
-      createWorker: createBrowserWorker,
+      createWorker: () => createBrowserWorker(this.loadFault),
       init: { type: 'init', backend: 'wasm', threads: 1, wasmPaths: wasmPaths() },
       store,
       faults: this.faults,

@@ -17,6 +17,7 @@ import type { ExperimentSpec } from '../../src/experiment/spec.ts';
 import { encodeSpecLink } from '../../src/share/link.ts';
 import { buildSite, serveStatic, type StaticServer } from '../../bench/static-server.ts';
 import { CHROMIUM, CHROMIUM_ARGS as ARGS } from '../../bench/chromium.ts';
+import { MAX_START_FAILURES } from '../../src/experiment/worker-pool-core.ts';
 
 const ROOT = resolve(import.meta.dirname, '../..');
 const SITE = join(ROOT, 'test-output', 'site');
@@ -279,6 +280,38 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     // A failed run is not kept: the sheet offers to run exactly those two again.
     expect(await runButton(page).textContent()).toContain('Run the 2 missing runs');
   }, 120_000);
+
+  it('gives up on workers that die before they are ready: every run fails with the reason and the sheet settles', async () => {
+    const spec = quickSpec({ base: 23, question: 'Browser test: workers that die while loading' });
+    const runs = spec.arms.length * spec.seeds.count;
+    const fragment = await encodeSpecLink(spec, { base: '' });
+    // `?fault=load` (test mode, query only): every run worker throws while loading.
+    const page = await open(`?fault=load${fragment}`);
+    expect(await page.locator('[data-fault-banner]').textContent()).toMatch(/throw while loading/);
+    let starts = 0;
+    page.on('worker', (worker) => {
+      if (/browser-worker/.test(worker.url())) starts++;
+    });
+    await runButton(page).click();
+    // The pool gives up after MAX_START_FAILURES deaths; without that rule it would start workers forever.
+    await waitState(page, 'done', 30_000);
+    expect(await cells(page, 'failed').count()).toBe(runs);
+    expect(await cells(page, 'ok').count()).toBe(0);
+    const reasons = await page.locator('ff-progress .cell[data-phase="failed"] [data-reason]').allTextContents();
+    expect(reasons).toHaveLength(runs);
+    for (const reason of reasons) {
+      expect(reason).toMatch(new RegExp(`workers die before they are ready \\(${MAX_START_FAILURES} tries\\)`));
+      expect(reason).toMatch(/worker crashed/);
+    }
+    // Bounded starts: at most one per run at first, plus a replacement for each death before the limit.
+    expect(starts).toBeLessThanOrEqual(Math.min(runs, 16) + MAX_START_FAILURES - 1);
+    // The sheet stays settled, and the failed runs can be tried again.
+    await page.waitForTimeout(1_000);
+    expect(await state(page)).toBe('done');
+    expect(await runButton(page).isEnabled()).toBe(true);
+    expect(await runButton(page).textContent()).toMatch(new RegExp(`Run (the )?${runs} (missing )?runs`));
+    console.log(`load-fault test: ${starts} worker starts seen for ${runs} runs; reason: ${reasons[0]}`);
+  }, 60_000);
 
   it('raised no uncaught page errors and no Content-Security-Policy refusals', () => {
     expect(pageErrors).toEqual([]);
