@@ -11,21 +11,14 @@
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
-import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
+import type { FromWorker } from '../../workers/protocol.ts';
 import { failedResult } from '../experiment/run-record.ts';
-import { runPoolCore, type FaultKind, type PoolEvents, type PoolWorker } from '../experiment/worker-pool-core.ts';
+import { runPoolCore, type CorePoolOptions, type FaultKind, type PoolEvents, type PoolWorker } from '../experiment/worker-pool-core.ts';
 
 export type { FaultKind, PoolEvents, PoolWorker };
 
-export interface PoolOptions {
-  workers: number;
-  createWorker: () => PoolWorker;
-  /** The 'init' message every new worker gets first. */
-  init: Extract<ToWorker, { type: 'init' }>;
-  events?: PoolEvents;
-  /** Test hook: inject a fault into these run indices. */
-  faults?: ReadonlyMap<number, FaultKind>;
-}
+/** The core's options as the sheet uses them (the start-failure limit stays the core's default). */
+export type PoolOptions = Omit<CorePoolOptions, 'maxStartFailures'>;
 
 export interface PoolHandle {
   /** Resolves with every result recorded (sorted by run index), also after cancel. */
