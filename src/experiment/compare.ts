@@ -198,7 +198,10 @@ export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): C
   const seeds = Array.from({ length: spec.seeds.count }, (_, s) => spec.seeds.base + s);
   const statsRng = new Rng(spec.seeds.base).fork('statistics');
   const fit = armFits(spec, runs);
-  const runOf = (a: number, seed: number) => runs.find((r) => r.armIndex === a && r.seed === seed);
+  // Looked up for every (rung, arm, seed) several times: a map, not a scan of every run each time.
+  const byArmSeed = new Map<string, RunResult>();
+  for (const r of runs) if (!byArmSeed.has(`${r.armIndex}:${r.seed}`)) byArmSeed.set(`${r.armIndex}:${r.seed}`, r);
+  const runOf = (a: number, seed: number) => byArmSeed.get(`${a}:${seed}`);
   const inDistributionMean = spec.arms.map((_, a) =>
     meanFinite(runs.filter((r) => r.armIndex === a && r.status === 'ok' && r.inDistribution).map((r) => r.inDistribution![metric])),
   );
