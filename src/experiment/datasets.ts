@@ -49,25 +49,17 @@ export function seedRoot(seed: number): Rng {
 export function makeSeedData(spec: ExperimentSpec, seed: number): SeedData {
   const data = seedRoot(seed).fork('data');
   const [lo, hi] = spec.train.sizes;
-  const trainStream = data.fork('train');
-  const withRoundStates = usesStepSupervision(spec);
-  const train: TaskInstance[] = [];
-  for (let i = 0; i < spec.train.graphs; i++) {
-    const r = trainStream.fork(i);
-    train.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r, withRoundStates));
-  }
-  const validationStream = data.fork('validation');
-  const validation: TaskInstance[] = [];
-  for (let i = 0; i < spec.test.validationGraphs; i++) {
-    const r = validationStream.fork(i);
-    validation.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r));
-  }
-  const fitStream = data.fork('fit');
-  const fit: TaskInstance[] = [];
-  for (let i = 0; i < (spec.test.fitGraphs ?? spec.test.validationGraphs); i++) {
-    const r = fitStream.fork(i);
-    fit.push(makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r));
-  }
+  // Graphs of the training sizes from their own named stream: graph i draws its size, then itself.
+  const trainingSized = (label: string, count: number, roundStates = false): TaskInstance[] => {
+    const stream = data.fork(label);
+    return Array.from({ length: count }, (_, i) => {
+      const r = stream.fork(i);
+      return makeInstance(spec, spec.train.family, r.int(lo, hi), 1, r, roundStates);
+    });
+  };
+  const train = trainingSized('train', spec.train.graphs, usesStepSupervision(spec));
+  const validation = trainingSized('validation', spec.test.validationGraphs);
+  const fit = trainingSized('fit', spec.test.fitGraphs ?? spec.test.validationGraphs);
   const testFamily = spec.test.family ?? spec.train.family;
   const rungs: Rung[] = [];
   for (const size of spec.test.sizes) {

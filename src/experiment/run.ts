@@ -14,7 +14,7 @@ import type { FeatureTransforms } from '../train/batch.ts';
 import { train, type TrainProgress } from '../train/trainer.ts';
 import { evaluateSet } from '../train/evaluate.ts';
 import type { TaskInstance } from '../tasks/types.ts';
-import { constantBaselines, countedTargets } from '../train/baselines.ts';
+import { constantBaselines, countedTargets, optimalConstants } from '../train/baselines.ts';
 import { unmeasuredResult } from './run-record.ts';
 import type { RungResult, RunResult } from './run-types.ts';
 
@@ -113,7 +113,7 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
     }
     base.inDistribution = evaluateSet(network, data.fit, transforms).metrics;
     base.validation = evaluateSet(network, data.validation, transforms).metrics;
-    const trainTargets = countedTargets(data.train);
+    const trainConstant = optimalConstants(countedTargets(data.train));
     for (const rung of data.rungs) {
       const { metrics } = evaluateSet(network, rung.instances, transforms);
       base.ladder.push({
@@ -121,7 +121,7 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
         size: rung.size,
         scale: rung.scale,
         metrics,
-        baseline: constantBaselines(rung.instances, trainTargets),
+        baseline: constantBaselines(rung.instances, trainConstant),
         ...rungSummary(rung.instances),
       });
     }

@@ -99,22 +99,21 @@ export function constantMetrics(instances: readonly TaskInstance[], constant: nu
   return acc.result();
 }
 
-/** Both baselines on `instances`, with the training constant fitted on `trainTargets`. */
-export function constantBaselines(instances: readonly TaskInstance[], trainTargets: readonly number[]): ConstantBaselines {
-  const targets = countedTargets(instances);
-  const out: ConstantBaselines = {
-    best: { mae: NaN, mre: NaN, miss: NaN },
-    train: { mae: NaN, mre: NaN, miss: NaN },
-    bestConstant: { mae: NaN, mre: NaN, miss: NaN },
-    trainConstant: { mae: NaN, mre: NaN, miss: NaN },
+/** The optimal constant for every metric over these targets. */
+export function optimalConstants(targets: readonly number[]): PerMetric {
+  return { mae: optimalConstant('mae', targets), mre: optimalConstant('mre', targets), miss: optimalConstant('miss', targets) };
+}
+
+/**
+ * Both baselines on `instances`: the best constants for these instances, and `trainConstant`
+ * (optimalConstants of the training targets, fitted once per run rather than once per rung).
+ */
+export function constantBaselines(instances: readonly TaskInstance[], trainConstant: PerMetric): ConstantBaselines {
+  const bestConstant = optimalConstants(countedTargets(instances));
+  const scored = (constants: PerMetric): PerMetric => {
+    const out: PerMetric = { mae: NaN, mre: NaN, miss: NaN };
+    for (const metric of METRICS) if (!Number.isNaN(constants[metric])) out[metric] = constantMetrics(instances, constants[metric])[metric];
+    return out;
   };
-  for (const metric of METRICS) {
-    const best = optimalConstant(metric, targets);
-    const fitted = optimalConstant(metric, trainTargets);
-    out.bestConstant[metric] = best;
-    out.trainConstant[metric] = fitted;
-    out.best[metric] = Number.isNaN(best) ? NaN : constantMetrics(instances, best)[metric];
-    out.train[metric] = Number.isNaN(fitted) ? NaN : constantMetrics(instances, fitted)[metric];
-  }
-  return out;
+  return { best: scored(bestConstant), train: scored(trainConstant), bestConstant, trainConstant: { ...trainConstant } };
 }

@@ -8,7 +8,7 @@
  * deviations (here weights 1/|t|, the relative error).
  */
 import { describe, expect, it } from 'vitest';
-import { constantBaselines, constantMetrics, countedTargets, optimalConstant, weightedMedian } from '../../src/train/baselines.ts';
+import { constantBaselines, constantMetrics, countedTargets, optimalConstant, optimalConstants, weightedMedian } from '../../src/train/baselines.ts';
 import type { TaskInstance } from '../../src/tasks/types.ts';
 import { Rng } from '../../src/util/rng.ts';
 
@@ -76,7 +76,7 @@ describe('constant baselines', () => {
 
   it('reports the rung’s own best constant and the training constant scored on the rung', () => {
     const rung = [instance([4, 5, 6])];
-    const b = constantBaselines(rung, [1, 1, 1, 2]);
+    const b = constantBaselines(rung, optimalConstants([1, 1, 1, 2]));
     expect(b.bestConstant.mae).toBe(5);
     expect(b.best.mae).toBeCloseTo(2 / 3, 12);
     expect(b.trainConstant.mae).toBe(1);
