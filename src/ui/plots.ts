@@ -17,6 +17,8 @@ export interface FigureOptions {
   logY?: boolean;
   /** Fixed height (figures shown side by side share one). */
   height?: number;
+  /** The document to draw into: the page's by default; a light DOM in Node (the standalone report). */
+  document?: Document;
 }
 
 const style = (fontSize: number) => ({ fontFamily: FIGURE_FONT, fontSize: `${fontSize}px`, background: 'transparent', color: INK, overflow: 'visible' });
@@ -110,6 +112,7 @@ export function extrapolationFigure(view: EvidenceView, options: FigureOptions):
   });
   const clipNote = clipAt === null ? [] : [Plot.text([0], { frameAnchor: 'top-right', dx: -8, dy: 38, text: () => '▲ best / △ training constant above the axis (log scale shows them)', fill: MUTED, fontSize: fontSize - 3, textAnchor: 'end' })];
   return Plot.plot({
+    document: options.document,
     width: options.width,
     height: Math.round(Math.min(520, Math.max(300, options.width * 0.4))),
     marginLeft: 64,
@@ -197,6 +200,7 @@ export function differenceFigure(view: EvidenceView, options: FigureOptions): SV
     ];
   });
   return Plot.plot({
+    document: options.document,
     width: options.width,
     height: options.height ?? Math.max(240, facetRows ? pairs.length * 150 + 60 : 320),
     marginLeft: 64,
@@ -238,6 +242,7 @@ export function seedFigure(view: EvidenceView, options: FigureOptions): SVGSVGEl
   const cells: Array<{ size: number; scale: number }> = [...view.seeds, ...view.blownUp];
   const order = [...new Set(cells.slice().sort((a, b) => a.size - b.size || a.scale - b.scale).map(label))];
   return Plot.plot({
+    document: options.document,
     width: options.width,
     height: options.height ?? Math.round(Math.min(380, Math.max(260, options.width * 0.42))),
     marginLeft: 64,
