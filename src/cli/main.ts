@@ -8,6 +8,7 @@ import { commandProbe } from './commands/probe.ts';
 import { commandMerge } from './commands/merge.ts';
 import { commandBench } from './commands/bench.ts';
 import { commandShare } from './commands/share.ts';
+import { commandReport } from './commands/report.ts';
 
 const HELP = `farfield — does this message-passing architecture keep working on larger graphs?
 
@@ -25,6 +26,8 @@ Commands:
       print a share link carrying the whole spec (open it in the sheet, or pass it to run)
   merge part-1.json part-2.json ... [--out FILE] [--json]
       combine shard results (run --shard i/N) and recompute the statistics
+  report <results.json> [--out report.html] [--base URL]
+      one self-contained HTML file: question, arms, setup, every figure, verdicts with caveats, fingerprint and share link; opens offline, prints to A4
   bench [--quick] [--json] [--presets a,b | --skip-presets] [--long-steps N] [--seconds S] [--workers K]
       measure WASM vs CPU training speed, FLOP/s, worker scaling, preset wall times and tensor leaks; check the speed targets
 
@@ -39,6 +42,7 @@ const COMMANDS: Record<string, Command> = {
   probe: commandProbe,
   merge: commandMerge,
   share: commandShare,
+  report: commandReport,
   bench: commandBench,
 };
 
