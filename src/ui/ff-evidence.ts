@@ -8,6 +8,7 @@
 import { LitElement, css, html, nothing, type PropertyValues } from 'lit';
 import { AUTO_LOG_DECADES, type EvidenceView } from './evidence.ts';
 import { differenceFigure, extrapolationFigure, seedFigure } from './plots.ts';
+import { autoLogReason, curvesCaption, DIFFERENCES_CAPTION, FIGURE_HEADINGS, seedsCaption } from './figure-list.ts';
 import { num } from './format.ts';
 import { controls } from './styles.ts';
 import './ff-figure.ts';
@@ -276,33 +277,33 @@ export class FfEvidence extends LitElement {
         ${hasBaselines ? html`${refKey('7 4', 'best constant')}${refKey('2 3', 'training constant')}` : nothing}
         <label><input type="checkbox" .checked=${this.logY} @change=${(e: Event) => (this.logChoice = (e.target as HTMLInputElement).checked)} aria-label="Log scale for errors" />log scale</label>
         ${this.logChoice === null && this.logY
-          ? html`<span class="auto-log" data-auto-log>on by itself: the errors span ${v.errorDecades.toFixed(1)} decades, and a linear axis would flatten every curve but the largest</span>`
+          ? html`<span class="auto-log" data-auto-log>on by itself: ${autoLogReason(v)}</span>`
           : nothing}
       </div>
       <div class="figs">
         <ff-figure
           .number=${1}
-          heading="Extrapolation: error against test size"
+          heading=${FIGURE_HEADINGS.curves}
           name="curves"
           .figure=${this.figures.curves}
-          caption=${`Per arm, the mean over seeds of the ${v.metricLabel}, with a 95% bootstrap interval; ◇ marks the error on fresh graphs of the training sizes (not the graphs that chose the kept weights). Grey reference lines: the error of predicting one number for every node — the best such number for each size (long dashes) and the number fitted on the training graphs (short dashes); an arm on or above the long-dashed line has learned nothing usable there. The shaded band is the range of sizes seen in training; under each size, the mean depth the exact algorithm needs — a bigger graph is not always a deeper one.`}
+          caption=${curvesCaption(v)}
         ></ff-figure>
         <div class=${this.sideBySide() ? 'pair' : 'pair single'}>
           ${v.diffs.length
             ? html`<ff-figure
                 .number=${2}
-                heading="Paired difference per size"
+                heading=${FIGURE_HEADINGS.differences}
                 name="differences"
                 .figure=${this.figures.diffs}
-                caption="Mean over seeds of (error of A − error of B), same graphs and initial weights per seed, with a 95% paired bootstrap interval. Below the zero line A is better; a coloured point marks a verdict for that arm."
+                caption=${DIFFERENCES_CAPTION}
               ></ff-figure>`
             : nothing}
           <ff-figure
             .number=${v.diffs.length ? 3 : 2}
-            heading="Every seed"
+            heading=${FIGURE_HEADINGS.seeds}
             name="seeds"
             .figure=${this.figures.seeds}
-            caption=${`Each dot is one trained network; lines join the arms of the same seed, so crossing lines mean the seeds disagree.${v.blownUp.length ? ' × at the top: runs that blew up (diverged, failed or a non-finite error); each counts as the worst outcome in the paired tests.' : ''}`}
+            caption=${seedsCaption(v)}
           ></ff-figure>
         </div>
         <ff-verdict-table
