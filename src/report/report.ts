@@ -104,7 +104,7 @@ function armsSection(spec: ExperimentSpec, view: EvidenceView): string {
 function setupSection(spec: ExperimentSpec, view: EvidenceView): string {
   const t = spec.test;
   const rows: Array<[string, string]> = [
-    ['task', spec.task],
+    ['task', specValue(spec.task)],
     ['metric', `${view.metricLabel} (also picks the kept weights)`],
     ['training graphs', `${spec.train.graphs} ${spec.train.family} graphs of ${spec.train.sizes[0]}–${spec.train.sizes[1]} nodes, weights in [${spec.train.weightRange.join(', ')}]${Object.keys(spec.train.familyParams).length ? `, ${specValue(spec.train.familyParams)}` : ''}`],
     [
@@ -247,7 +247,7 @@ export async function buildReport(doc: ResultsDocument, options: ReportOptions):
 <body>
 <main>
 <header>
-  <p class="kicker">Farfield experiment sheet · ${esc(spec.task)} · ${spec.arms.length} arms × ${spec.seeds.count} seeds</p>
+  <p class="kicker">Farfield experiment sheet · ${esc(specValue(spec.task))} · ${spec.arms.length} arms × ${spec.seeds.count} seeds</p>
   <h1 data-question>${esc(spec.question)}</h1>
   ${spec.expectation ? `<p class="expectation"><strong>Expectation.</strong> ${esc(spec.expectation)}</p>` : ''}
 </header>
