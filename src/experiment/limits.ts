@@ -3,6 +3,8 @@
  * stranger's link cannot freeze a browser tab or exhaust memory; each one is
  * listed in README.md ("Limits and bad input").
  */
+import { GRAPH_FILE_LIMITS } from '../graphs/files/caps.ts';
+
 export const LIMITS = {
   trainNodes: { min: 3, max: 128 },
   testNodes: { min: 3, max: 512 },
@@ -31,4 +33,6 @@ export const LIMITS = {
   decompressedBytes: { max: 65_536 },
   /** Preset files read from disk. */
   fileBytes: { max: 262_144 },
+  /** Graph files scored as test rungs: their caps live with the readers (src/graphs/files/caps.ts). */
+  ...GRAPH_FILE_LIMITS,
 } as const;

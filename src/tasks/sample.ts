@@ -18,7 +18,7 @@ import { getFamily } from '../graphs/registry.ts';
 import { DEFAULT_WEIGHT_RANGE } from '../graphs/common.ts';
 import { scaleWeights, toPlainGraph } from '../graphs/plain.ts';
 import type { GraphFamily } from '../graphs/types.ts';
-import { getTask } from './registry.ts';
+import { getTask, type TaskRef } from './registry.ts';
 import type { Task, TaskInstance } from './types.ts';
 
 const WHERE = 'tasks/sample';
@@ -59,7 +59,7 @@ export function checkCombination(task: Task, family: GraphFamily): void {
 
 /** Generate one graph of `familyId` with `nodes` nodes and build the `taskId` instance on it. */
 export function buildInstance(
-  taskId: string,
+  taskId: TaskRef,
   familyId: string,
   nodes: number,
   rng: Rng,
@@ -124,6 +124,26 @@ export interface Sample {
   graphs: SampledGraph[];
 }
 
+/** One graph with its exact targets in plain numbers: the entry `farfield sample` prints (also for graph files). */
+export function sampledGraph(taskId: string, graph: Graph, instance: TaskInstance): SampledGraph {
+  const plain = toPlainGraph(graph);
+  const entry: SampledGraph = {
+    nodes: plain.nodes,
+    directed: plain.directed,
+    edges: plain.edges,
+    ...(plain.positions ? { positions: plain.positions } : {}),
+    ...(instance.source !== undefined ? { source: instance.source } : {}),
+    target: instance.target,
+    mask: instance.mask,
+    depth: instance.depth,
+  };
+  for (const [key, value] of Object.entries(instance.extras ?? {})) {
+    if (key in entry) throw new Error(`${WHERE}: task '${taskId}' extra '${key}' collides with a core field`);
+    entry[key] = value;
+  }
+  return entry;
+}
+
 /** `count` graphs with exact targets, in plain numbers (what `farfield sample` prints). */
 export function sampleGraphs(options: SampleOptions): Sample {
   const { task, family, nodes, count, seed, weightRange = DEFAULT_WEIGHT_RANGE, weightScale = 1, params, source } = options;
@@ -134,23 +154,7 @@ export function sampleGraphs(options: SampleOptions): Sample {
   const graphs: SampledGraph[] = [];
   for (let i = 0; i < count; i++) {
     const built = buildInstance(task, family, nodes, base.fork(i), { weightRange, weightScale, params, source });
-    const plain = toPlainGraph(built.graph);
-    const { instance } = built;
-    const entry: SampledGraph = {
-      nodes: plain.nodes,
-      directed: plain.directed,
-      edges: plain.edges,
-      ...(plain.positions ? { positions: plain.positions } : {}),
-      ...(instance.source !== undefined ? { source: instance.source } : {}),
-      target: instance.target,
-      mask: instance.mask,
-      depth: instance.depth,
-    };
-    for (const [key, value] of Object.entries(instance.extras ?? {})) {
-      if (key in entry) throw new Error(`${WHERE}: task '${task}' extra '${key}' collides with a core field`);
-      entry[key] = value;
-    }
-    graphs.push(entry);
+    graphs.push(sampledGraph(task, built.graph, built.instance));
   }
   return { task, family, seed, weightRange: [weightRange[0], weightRange[1]], weightScale, graphs };
 }
