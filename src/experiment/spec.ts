@@ -9,6 +9,7 @@ import { LIMITS } from './limits.ts';
 import { ACTIVATION_NAMES, AGGREGATOR_NAMES, MESSAGE_NAMES, STEP_RULE_NAMES, TRANSFORM_NAMES, UPDATE_NAMES } from '../model/catalogue.ts';
 import type { ModelOptions, StepRule } from '../model/options.ts';
 import type { Budget, MetricName, Schedule } from '../train/options.ts';
+import { GRAPH_FILE_FORMATS } from '../graphs/files/types.ts';
 
 export type { AggregatorName, MessageName, UpdateName, TransformName, ModelOptions, StepRule } from '../model/options.ts';
 export type { Budget, MetricName, Schedule } from '../train/options.ts';
@@ -150,6 +151,28 @@ export const armSchema = z
   })
   .strict();
 
+/**
+ * A graph file scored as one more test rung (never trained on). The file's
+ * content is not in the spec: the host supplies it, and `sha256` (of the
+ * file's bytes) ties the spec, its hash and its share link to exactly that
+ * content. A preset may leave the hash out; the CLI and the sheet fill it in
+ * when they read the file. Names resolve relative to the preset file.
+ */
+export const graphFileSchema = z
+  .object({
+    name: z.string().min(1).max(200),
+    /** Absent: from the extension (.csv .tsv .txt .edges: edge-list; .gr .dimacs: dimacs; .graphml; .gexf). */
+    format: z.enum(GRAPH_FILE_FORMATS).optional(),
+    /** Weight column (edge list) or edge attribute (GraphML, GEXF); absent: "weight". */
+    weight: z.string().min(1).max(60).optional(),
+    /** Source node id as the file writes it, for tasks that start from one; absent: the file's first node. */
+    source: z.string().min(1).max(200).optional(),
+    /** Edge lists only: edges run source -> target; absent: undirected. */
+    directed: z.boolean().optional(),
+    sha256: z.string().regex(/^[0-9a-f]{64}$/, 'a SHA-256 in 64 lowercase hex digits').optional(),
+  })
+  .strict();
+
 const weightRange = z
   .tuple([num(LIMITS.weightBound.min, LIMITS.weightBound.max), num(LIMITS.weightBound.min, LIMITS.weightBound.max)])
   .refine(([lo, hi]) => lo <= hi, 'lower bound must not exceed upper bound');
@@ -194,6 +217,13 @@ export const specSchema = z
             scale: num(LIMITS.weightScale.min, LIMITS.weightScale.max).default(1),
           })
           .strict()
+          .optional(),
+        /** Graph files, each one more rung after the generated ones (absent: none; existing hashes unchanged). */
+        files: z
+          .array(graphFileSchema)
+          .min(1)
+          .max(LIMITS.graphFiles.max)
+          .refine((files) => new Set(files.map((f) => f.name)).size === files.length, 'file names must differ')
           .optional(),
       })
       .strict(),
@@ -252,6 +282,7 @@ export const specSchema = z
 export type SpecInput = z.input<typeof specSchema>;
 export type ExperimentSpec = z.output<typeof specSchema>;
 export type ArmSpec = z.output<typeof armSchema>;
+export type GraphFileSpec = z.output<typeof graphFileSchema>;
 
 /**
  * Type-level check: what the schema produces is exactly what the model and
