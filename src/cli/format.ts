@@ -1,6 +1,7 @@
 /** Plain-text rendering of results for the terminal. */
 import type { ResultsDocument } from '../experiment/results.ts';
 import type { RungComparison } from '../experiment/compare.ts';
+import { taskLabel } from '../tasks/registry.ts';
 
 export function num(x: number, digits = 3): string {
   if (x === null || x === undefined || Number.isNaN(x)) return '—';
@@ -28,6 +29,8 @@ const METRIC_WORDS: Record<string, string> = {
 };
 
 function rungLabel(r: RungComparison): string {
+  // A graph-file rung: the file's name and its node count.
+  if (r.family.startsWith('file:')) return `${r.family.slice(5)} (${r.size})`;
   return `${r.size}${r.scale !== 1 ? ` ×${r.scale}` : ''}`;
 }
 
@@ -36,7 +39,7 @@ export function renderResults(doc: ResultsDocument): string {
   const lines: string[] = [];
   lines.push(`Question: ${spec.question}`);
   lines.push(
-    `Task ${spec.task} · trained on ${spec.train.family} graphs of ${spec.train.sizes[0]}–${spec.train.sizes[1]} nodes · tested on ${spec.test.family ?? spec.train.family} · ${spec.seeds.count} seeds per arm · ${spec.budget.steps} training steps`,
+    `Task ${taskLabel(spec.task)} · trained on ${spec.train.family} graphs of ${spec.train.sizes[0]}–${spec.train.sizes[1]} nodes · tested on ${spec.test.family ?? spec.train.family} · ${spec.seeds.count} seeds per arm · ${spec.budget.steps} training steps`,
   );
   lines.push(`Metric: ${METRIC_WORDS[comparison.metric] ?? comparison.metric}; mean over seeds [95% bootstrap interval]`);
   lines.push('');

@@ -5,17 +5,24 @@
  */
 import { SpecError, parseSpec, type ExperimentSpec } from './spec.ts';
 import { LIMITS } from './limits.ts';
-import { tasks } from '../tasks/registry.ts';
+import { findTask, tasks } from '../tasks/registry.ts';
 import { families } from '../graphs/registry.ts';
+import { recurrenceProblems } from '../tasks/recurrence/options.ts';
+import { recurrenceWeightProblems } from '../tasks/recurrence/check.ts';
 
 export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
   const problems: string[] = [];
-  // Own keys only: a task named "constructor" must not find Object's.
-  const task = Object.hasOwn(tasks, spec.task) ? tasks[spec.task] : undefined;
+  if (typeof spec.task !== 'string') {
+    // Combinations of the recurrence's fields that have no meaning, before the task is built from them.
+    problems.push(...recurrenceProblems(spec.task.recurrence));
+    if (problems.length) throw new SpecError(problems);
+  }
+  const task = findTask(spec.task);
   if (!task) {
-    problems.push(`task: got ${JSON.stringify(spec.task)}, allowed ${Object.keys(tasks).map((t) => JSON.stringify(t)).join(' | ')}`);
+    problems.push(`task: got ${JSON.stringify(spec.task)}, allowed ${Object.keys(tasks).map((t) => JSON.stringify(t)).join(' | ')} or { "recurrence": ... }`);
     throw new SpecError(problems);
   }
+  if (typeof spec.task !== 'string') problems.push(...recurrenceWeightProblems(spec.task.recurrence, spec));
   const familyField = (field: string, id: string) => {
     const family = Object.hasOwn(families, id) ? families[id] : undefined;
     if (!family) {

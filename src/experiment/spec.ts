@@ -10,6 +10,14 @@ import { ACTIVATION_NAMES, AGGREGATOR_NAMES, MESSAGE_NAMES, STEP_RULE_NAMES, TRA
 import type { ModelOptions, StepRule } from '../model/options.ts';
 import type { Budget, MetricName, Schedule } from '../train/options.ts';
 import { GRAPH_FILE_FORMATS } from '../graphs/files/types.ts';
+import {
+  RECURRENCE_DEFAULTS,
+  RECURRENCE_DIRECTIONS,
+  RECURRENCE_OTHERS,
+  RECURRENCE_SEMIRINGS,
+  RECURRENCE_SOURCES,
+  type RecurrenceSpec,
+} from '../tasks/recurrence/options.ts';
 
 export type { AggregatorName, MessageName, UpdateName, TransformName, ModelOptions, StepRule } from '../model/options.ts';
 export type { Budget, MetricName, Schedule } from '../train/options.ts';
@@ -152,6 +160,24 @@ export const armSchema = z
   .strict();
 
 /**
+ * `task` as an object: a semiring path problem (src/tasks/recurrence/). A
+ * built-in task stays a plain string, so existing presets, hashes and links
+ * are unchanged; the object travels in hashes and links like every field.
+ */
+export const recurrenceTaskSchema = z
+  .object({
+    recurrence: z
+      .object({
+        semiring: z.enum(RECURRENCE_SEMIRINGS),
+        source: z.enum(RECURRENCE_SOURCES).default(RECURRENCE_DEFAULTS.source),
+        others: z.enum(RECURRENCE_OTHERS).default(RECURRENCE_DEFAULTS.others),
+        direction: z.enum(RECURRENCE_DIRECTIONS).default(RECURRENCE_DEFAULTS.direction),
+      })
+      .strict(),
+  })
+  .strict();
+
+/**
  * A graph file scored as one more test rung (never trained on). The file's
  * content is not in the spec: the host supplies it, and `sha256` (of the
  * file's bytes) ties the spec, its hash and its share link to exactly that
@@ -183,7 +209,7 @@ export const specSchema = z
     question: text(300).min(1),
     /** What we expect, honestly stated, and what was held equal between arms. */
     expectation: text().default(''),
-    task: z.string().min(1).max(40),
+    task: z.union([z.string().min(1).max(40), recurrenceTaskSchema]),
     train: z
       .object({
         family: z.string().min(1).max(40),
@@ -298,6 +324,7 @@ export type SchemaMatchesLayers = [
   Holds<Same<z.output<typeof scheduleSchema>, Schedule>>,
   Holds<Same<ExperimentSpec['budget'], Budget>>,
   Holds<Same<(typeof METRICS)[number], MetricName>>,
+  Holds<Same<z.output<typeof recurrenceTaskSchema>['recurrence'], RecurrenceSpec>>,
 ];
 
 /** The training switches in force for one arm: the arm's own where it states them, else the budget's. */
@@ -369,6 +396,14 @@ function describeIssue(issue: z.core.$ZodIssue, input: unknown): string {
       return `${field}: got ${show(received)}, allowed ${issue.values.map((v) => JSON.stringify(v)).join(' | ')}`;
     case 'unrecognized_keys':
       return `${field === '(top level)' ? '' : `${field}: `}unknown field${issue.keys.length > 1 ? 's' : ''} ${issue.keys.map((k) => `"${k}"`).join(', ')}`;
+    case 'invalid_union': {
+      // `task` is a string or a recurrence object: report the branch of the kind received, not both.
+      const branches = issue.errors.filter((branch) => branch.length > 0);
+      const fits = branches.find((branch) => !branch.some((i) => i.code === 'invalid_type' && i.path.length === 0));
+      if (fits) return describeIssue({ ...fits[0]!, path: [...issue.path, ...fits[0]!.path] }, input);
+      const expected = 'a task id (string) or { "recurrence": { "semiring": ... } }';
+      return received === undefined ? `${field}: missing (expected ${expected})` : `${field}: got ${show(received)}, expected ${expected}`;
+    }
     case 'invalid_type':
       return received === undefined
         ? `${field}: missing (expected ${issue.expected})`

@@ -36,6 +36,7 @@ import { uploadBatch } from '../train/tensors.ts';
 import { predict } from '../train/evaluate.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import { rungScaling, scaleLikeRung, scalesEverythingTogether } from '../tasks/rung-scaling.ts';
+import { taskLabel, type TaskRef } from '../tasks/registry.ts';
 import { Rng } from '../util/rng.ts';
 import { forwardStates, stepPlan } from './states.ts';
 
@@ -315,7 +316,7 @@ export interface NetworkAuditOptions {
    * input is scaled by λ (pure homogeneity, which is the rung's transformation
    * only for the tasks whose rung scales every input).
    */
-  task?: string;
+  task?: TaskRef;
   /** Random asynchronous schedules per batch. */
   schedules?: number;
   /** Chance a node updates at a tick, and that an incoming edge delivers when its node updates. */
@@ -497,8 +498,9 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
  * construction and the rung scales every input and the target together;
  * otherwise the residual is reported, with the reason in the subject or note.
  */
-function homogeneityRow(network: MessagePassingNetwork, transforms: FeatureTransforms, insts: readonly TaskInstance[], scales: readonly number[], task: string | undefined): AuditRow {
-  const scaling = task === undefined ? null : rungScaling(task);
+function homogeneityRow(network: MessagePassingNetwork, transforms: FeatureTransforms, insts: readonly TaskInstance[], scales: readonly number[], ref: TaskRef | undefined): AuditRow {
+  const scaling = ref === undefined ? null : rungScaling(ref);
+  const task = ref === undefined ? undefined : taskLabel(ref);
   const base = predict(network, insts, transforms);
   const homogeneity: number[] = [];
   for (const lambda of scales) {
@@ -518,7 +520,7 @@ function homogeneityRow(network: MessagePassingNetwork, transforms: FeatureTrans
   if (scaling === null) how = 'x_λ = every raw input (node and edge) times λ before transforms (no task given)';
   else if (rungMatches) how = `x_λ = the inputs as the ${task} weight-scale rung ×λ builds them (every node and edge input times λ; the target scales by λ too)`;
   else {
-    const powers = (p: readonly number[]) => `[${p.map((x) => (x === 0 ? '1' : x === 1 ? 'λ' : `λ^${x}`)).join(', ')}]`;
+    const powers = (p: readonly number[]) => `[${p.map((x) => (x === 0 ? '1' : x === 1 ? 'λ' : Number.isNaN(x) ? 'no single power' : `λ^${x}`)).join(', ')}]`;
     how =
       `x_λ = the inputs as the ${task} weight-scale rung ×λ builds them (node inputs × ${powers(scaling.node)}, edge inputs × ${powers(scaling.edge)}, target × ${powers([scaling.target])}): ` +
       'the rung does not scale every input and the target together, so homogeneity is not what it asks of the network; reported';

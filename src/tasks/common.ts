@@ -81,7 +81,7 @@ export function checkSource(source: number, n: number, where: string): void {
  * those with no incoming edge (for the `dag` family that is always node 0,
  * which reaches every node).
  */
-export function chooseSource(graph: Graph, rng: Rng, where: string, fixed?: number): number {
+export function chooseSource(graph: Graph, rng: Rng, where: string, fixed?: number, reversed = false): number {
   const n = graph.order;
   if (n === 0) throw new Error(`${where}: the graph has no nodes`);
   if (fixed !== undefined) {
@@ -89,8 +89,9 @@ export function chooseSource(graph: Graph, rng: Rng, where: string, fixed?: numb
     return fixed;
   }
   if (graph.type === 'directed') {
+    // `reversed`: paths run against the edges, so the candidates are the nodes with no outgoing edge.
     const roots: number[] = [];
-    for (let i = 0; i < n; i++) if (graph.inDegree(String(i)) === 0) roots.push(i);
+    for (let i = 0; i < n; i++) if ((reversed ? graph.outDegree(String(i)) : graph.inDegree(String(i))) === 0) roots.push(i);
     if (roots.length > 0) return rng.pick(roots);
   }
   return rng.int(0, n - 1);

@@ -111,15 +111,25 @@ function resolveWeightRange(graph: Graph, options: TaskOptions): readonly [numbe
   return range;
 }
 
-function instance(graph: Graph, options: TaskOptions): TaskInstance {
-  if (graph.type !== 'directed') throw new Error(`${WHERE}: needs a directed acyclic graph, got a ${graph.type} graph`);
+/**
+ * One value per node drawn from `options.rng`: uniform in the weight range (see
+ * `resolveWeightRange`) times `options.weightScale`. Also the node weights of
+ * the recurrence task, which must draw exactly these to reproduce this task.
+ */
+export function drawDurations(graph: Graph, options: TaskOptions): number[] {
   const n = checkNodeKeys(graph, WHERE);
   const { weightScale, rng } = options;
   if (!Number.isFinite(weightScale) || weightScale <= 0) {
     throw new Error(`${WHERE}: weightScale must be a finite number > 0, got ${String(weightScale)}`);
   }
   const [lo, hi] = resolveWeightRange(graph, options);
-  const durations = Array.from({ length: n }, () => (lo === hi ? lo : rng.uniform(lo, hi)) * weightScale);
+  return Array.from({ length: n }, () => (lo === hi ? lo : rng.uniform(lo, hi)) * weightScale);
+}
+
+function instance(graph: Graph, options: TaskOptions): TaskInstance {
+  if (graph.type !== 'directed') throw new Error(`${WHERE}: needs a directed acyclic graph, got a ${graph.type} graph`);
+  const n = checkNodeKeys(graph, WHERE);
+  const durations = drawDurations(graph, options);
   const predecessors: number[][] = Array.from({ length: n }, () => []);
   const messageSrc: number[] = [];
   const messageDst: number[] = [];

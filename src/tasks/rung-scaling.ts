@@ -15,7 +15,8 @@
  * charge-potential: distances scale, charges do not, potentials go as 1/c),
  * homogeneity is not what the rung asks for.
  */
-import { getTask } from './registry.ts';
+import { getTask, taskLabel, type TaskRef } from './registry.ts';
+import { recurrenceRungScaling } from './recurrence/rung-scaling.ts';
 import type { TaskInstance } from './types.ts';
 
 const WHERE = 'tasks/rung-scaling';
@@ -45,9 +46,10 @@ const RUNG_SCALING: Record<string, RungScaling> = {
 };
 
 /** The rung scaling of a registered task; a clear error when a task has none or its feature counts disagree. */
-export function rungScaling(taskId: string): RungScaling {
-  const task = getTask(taskId);
-  const scaling = Object.prototype.hasOwnProperty.call(RUNG_SCALING, taskId) ? RUNG_SCALING[taskId] : undefined;
+export function rungScaling(ref: TaskRef): RungScaling {
+  const task = getTask(ref);
+  const taskId = taskLabel(ref);
+  const scaling = typeof ref !== 'string' ? recurrenceRungScaling(ref.recurrence) : Object.hasOwn(RUNG_SCALING, ref) ? RUNG_SCALING[ref] : undefined;
   if (!scaling) throw new Error(`${WHERE}: task '${taskId}' has no entry; add how its weight-scale rung scales each input`);
   if (scaling.node.length !== task.nodeFeatureNames.length || scaling.edge.length !== task.edgeFeatureNames.length) {
     throw new Error(

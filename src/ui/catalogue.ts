@@ -5,7 +5,9 @@
  * hints) and schema constants, so a new task, family or aggregator appears
  * here without touching a component.
  */
-import { tasks } from '../tasks/registry.ts';
+import { findTask, tasks, type TaskRef } from '../tasks/registry.ts';
+import { recurrenceAlignment } from '../tasks/recurrence/alignment.ts';
+import type { Task } from '../tasks/types.ts';
 import { families } from '../graphs/registry.ts';
 import { LOSSES, METRICS } from '../experiment/spec.ts';
 import {
@@ -33,6 +35,8 @@ export interface TaskInfo {
   nodeFeatures: string[];
   edgeFeatures: string[];
   families: string[];
+  /** For a recurrence: the aggregator and message layer its ⊕ and ⊗ suggest (one line). */
+  suggestion?: string;
 }
 
 export interface FamilyInfo {
@@ -41,8 +45,8 @@ export interface FamilyInfo {
   minNodes: number;
 }
 
-export function taskCatalogue(): TaskInfo[] {
-  return Object.values(tasks).map((t) => ({
+function infoOf(t: Task): TaskInfo {
+  return {
     id: t.id,
     title: t.title,
     describe: t.describe,
@@ -51,15 +55,27 @@ export function taskCatalogue(): TaskInfo[] {
     nodeFeatures: [...t.nodeFeatureNames],
     edgeFeatures: [...t.edgeFeatureNames],
     families: [...t.families],
-  }));
+  };
+}
+
+export function taskCatalogue(): TaskInfo[] {
+  return Object.values(tasks).map(infoOf);
 }
 
 export function familyCatalogue(): FamilyInfo[] {
   return Object.values(families).map((f) => ({ id: f.id, title: f.title, minNodes: f.minNodes }));
 }
 
-export function taskInfo(id: string): TaskInfo | undefined {
-  return taskCatalogue().find((t) => t.id === id);
+/** A built-in task by id, or a recurrence built from its object (undefined for an unknown id or a refused combination). */
+export function taskInfo(ref: TaskRef): TaskInfo | undefined {
+  if (typeof ref === 'string') return taskCatalogue().find((t) => t.id === ref);
+  let task: Task | undefined;
+  try {
+    task = findTask(ref);
+  } catch {
+    return undefined; // the draft's validation names the field
+  }
+  return task && { ...infoOf(task), suggestion: recurrenceAlignment(ref.recurrence.semiring).line };
 }
 
 const METRIC_LABELS: Record<string, string> = {

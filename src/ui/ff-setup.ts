@@ -8,7 +8,7 @@ import { DEFAULT_FIT_GATE, type Schedule } from '../experiment/spec.ts';
 import type { Draft } from './spec-draft.ts';
 import { fieldName, parseNumber, parseNumberList } from './spec-draft.ts';
 import type { FamilyInfo, TaskInfo } from './catalogue.ts';
-import { OPTIONS } from './catalogue.ts';
+import { OPTIONS, taskInfo } from './catalogue.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
 
@@ -185,7 +185,8 @@ export class FfSetup extends LitElement {
   override render() {
     const d = this.draft;
     if (!d) return null;
-    const task = this.tasks.find((t) => t.id === d.task);
+    // A recurrence task (an object in the spec) is not in the picker's list: it is built from its fields.
+    const task = typeof d.task === 'string' ? this.tasks.find((t) => t.id === d.task) : taskInfo(d.task);
     const allowed = this.families.filter((f) => !task || task.families.includes(f.id));
     const familyChoices = allowed.map((f) => ({ value: f.id, label: f.id, hint: f.title }));
     const trainFamily = this.families.find((f) => f.id === d.train.family);
@@ -199,12 +200,13 @@ export class FfSetup extends LitElement {
           ?disabled=${this.disabled}
           @change=${(e: Event) => emit(this, 'ff-edit', { kind: 'task', task: (e.target as HTMLSelectElement).value })}
         >
+          ${typeof d.task !== 'string' ? html`<option value="" selected disabled>${task?.id ?? 'recurrence'}</option>` : nothing}
           ${this.tasks.map((t) => html`<option value=${t.id} ?selected=${t.id === d.task}>${t.id}</option>`)}
         </select>
         ${task
           ? html`<span class="gloss">${task.title}: ${task.describe}<br />Aligned structure, for information only:
                 <span class="aligned">${task.alignedStructure}</span> — the aggregator one would expect to fit is
-                <strong>${task.alignedAggregator}</strong>.</span>`
+                <strong>${task.alignedAggregator}</strong>.${task.suggestion ? html`<br /><span class="suggestion">Suggested for ${task.suggestion}</span>` : nothing}</span>`
           : null}
       </div>
 

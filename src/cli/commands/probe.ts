@@ -14,6 +14,7 @@ import { probeSummary, type Probe } from '../../inspect/probe.ts';
 import type { AuditRow } from '../../inspect/audit.ts';
 import type { AlignmentTrace } from '../../inspect/trace.ts';
 import { num, renderTable } from '../format.ts';
+import { taskLabel } from '../../tasks/registry.ts';
 
 const USAGE = 'usage: farfield probe <preset.json | link> [--json] [--seeds N] [--arms a,b]';
 
@@ -106,7 +107,7 @@ function renderArm(entry: ArmProbes): string {
 export function renderProbeDocument(doc: ProbeDocument): string {
   const out = [
     `Question: ${doc.spec.question}`,
-    `Task ${doc.spec.task} · trained on ${doc.spec.train.family} graphs of ${doc.spec.train.sizes[0]}–${doc.spec.train.sizes[1]} nodes, weights ${doc.spec.train.weightRange[0]}–${doc.spec.train.weightRange[1]} · seed(s) ${doc.seeds.join(', ')}`,
+    `Task ${taskLabel(doc.spec.task)} · trained on ${doc.spec.train.family} graphs of ${doc.spec.train.sizes[0]}–${doc.spec.train.sizes[1]} nodes, weights ${doc.spec.train.weightRange[0]}–${doc.spec.train.weightRange[1]} · seed(s) ${doc.seeds.join(', ')}`,
     '',
   ];
   for (const entry of doc.arms) out.push(renderArm(entry), '');
