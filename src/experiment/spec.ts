@@ -384,7 +384,8 @@ function show(value: unknown): string {
   return out.length > 60 ? `${out.slice(0, 57)}...` : out;
 }
 
-function describeIssue(issue: z.core.$ZodIssue, input: unknown): string {
+/** One schema issue as "field: got X, allowed Y" (also used for results and saved-network files). */
+export function describeIssue(issue: z.core.$ZodIssue, input: unknown): string {
   const field = fieldName(issue.path);
   const received = valueAt(input, issue.path);
   switch (issue.code) {
