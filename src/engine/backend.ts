@@ -34,7 +34,7 @@ import { patchWasmIdentity } from './kernels-identity.ts';
 import { patchWasmBroadcast } from './kernels-broadcast.ts';
 import { patchWasmLayout } from './kernels-layout.ts';
 import { patchWasmMatMul } from './kernels-matmul.ts';
-import { simdKernels } from './simd/simd-kernels.ts';
+import { prepareSimdKernels, simdKernels } from './simd/simd-kernels.ts';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 
 export type BackendName = 'wasm' | 'cpu';
@@ -198,6 +198,7 @@ async function doInit(
     threads = threaded ? Math.max(1, api.getThreadsCount()) : 1;
   }
   // Same numbers either way (src/engine/simd/); reported because speed differs.
+  if (name === 'wasm') await prepareSimdKernels(tf.backend() as unknown as BackendWasm);
   const simd = name === 'wasm' && simdKernels(tf.backend() as unknown as BackendWasm) != null;
   active = { backend: name, threads, simd };
   return { ...active };

@@ -25,6 +25,7 @@ import { ParamStore } from './params.ts';
 import { getAggregator, type Aggregator } from './aggregators.ts';
 import { semiringDense, type SemiringKind } from './semiring.ts';
 import { gatherPairAdd, gatherRows, segmentCounts } from './ops.ts';
+import { fusedProcessApplies, runFusedProcess } from './fused-process.ts';
 
 export interface NetworkInputs {
   nodeX: tf.Tensor2D;
@@ -206,6 +207,7 @@ export class MessagePassingNetwork {
 
   /** Run the network. Call inside tf.tidy (or a gradient function); returned tensors are not kept. */
   forward(inputs: NetworkInputs, options: ForwardOptions): ForwardResult {
+    if (fusedProcessApplies(this.options, options, inputs.nodes, inputs.src.shape[0], options.steps)) return this.forwardFused(inputs, options.steps);
     const counts = segmentCounts(inputs.dst, inputs.nodes);
     const hasIncoming = tf.minimum(counts, 1) as tf.Tensor2D;
     const encoded = this.encode(inputs.nodeX);
@@ -236,6 +238,27 @@ export class MessagePassingNetwork {
       if (stable) break;
     }
     return { prediction: this.decode(h), stepsRun, trace };
+  }
+
+  /** The same map as `forward`'s loop, bit for bit, as one fused kernel each way (src/engine/kernels-process.ts). */
+  private forwardFused(inputs: NetworkInputs, steps: number): ForwardResult {
+    const p = this.params;
+    const optional = (name: string) => (p.has(name) ? p.get(name) : undefined);
+    const joined = this.joinedWeights();
+    const h = runFusedProcess(this.options, {
+      encoded: this.encode(inputs.nodeX),
+      edgeTerm: this.edgeTerm(inputs.edgeX),
+      src: inputs.src,
+      dst: inputs.dst,
+      jm: joined.message!,
+      w2m: p.get('message.w2') as tf.Tensor2D,
+      b2m: optional('message.b2'),
+      ju: joined.update!,
+      bu: optional('update.b'),
+      w2u: p.get('update.w2') as tf.Tensor2D,
+      b2u: optional('update.b2'),
+    }, steps);
+    return { prediction: this.decode(h), stepsRun: steps, trace: [] };
   }
 
   dispose(): void {

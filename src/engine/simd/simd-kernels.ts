@@ -31,6 +31,14 @@ interface Exports {
     scale: number, b1: number, c1: number, b2: number, c2: number, o1: number, o2: number, eps: number, nlr: number,
   ): void;
   sum_squares(x: number, n: number): number;
+  relu(x: number, out: number, n: number): void;
+  leaky_relu(x: number, out: number, n: number, alpha: number): void;
+  relu_grad(dy: number, x: number, out: number, n: number): void;
+  leaky_grad(dy: number, x: number, out: number, n: number, alpha: number): void;
+  add(a: number, b: number, out: number, n: number): void;
+  add_row(x: number, b: number, out: number, rows: number, cols: number): void;
+  segment_sum(x: number, ids: number, out: number, E: number, H: number, S: number): void;
+  gather_rows(x: number, ids: number, out: number, E: number, H: number): void;
   equal3(a: number, b: number, out: number, d0: number, d1: number, d2: number, as0: number, as1: number, as2: number, bs0: number, bs1: number, bs2: number): void;
 }
 
@@ -70,10 +78,51 @@ export interface SimdKernels {
   sumSquares(x: TensorInfo, n: number): number;
   /** out = (a == b) as bytes over a broadcast of 3 axes (shape, and each input's element strides, 0 where it broadcasts). */
   equal3(a: TensorInfo, b: TensorInfo, out: TensorInfo, shape: [number, number, number], aStrides: [number, number, number], bStrides: [number, number, number]): void;
+  /** The same kernels on raw byte offsets, for fused kernels that keep their intermediates in one block. */
+  raw: RawSimd;
+}
+
+/**
+ * Pointer-level access for fused kernels (src/engine/kernels-process.ts): byte
+ * offsets into the backend's memory instead of tensors, plus the backend's own
+ * allocator. Views of `memory.buffer` go stale whenever `malloc` grows the
+ * memory, so take them after allocating.
+ */
+export interface RawSimd {
+  memory: WebAssembly.Memory;
+  offset(t: TensorInfo): number;
+  malloc(bytes: number): number;
+  free(pointer: number): void;
+  mmNN(a: number, b: number, c: number, K: number, M: number, N: number, bias: number, relu: boolean): void;
+  mmTN(a: number, b: number, c: number, K: number, M: number, N: number): void;
+  gatherPairAdd(p: number, src: number, dst: number, b: number, out: number, E: number, H: number): void;
+  scatterPair(dy: number, src: number, dst: number, out: number, nodes: number, E: number, H: number): void;
+  scatterByArg(dy: number, arg: number, out: number, rows: number, n: number, C: number): void;
+  segmentExtreme(x: number, ids: number, vals: number, arg: number, E: number, C: number, S: number, isMax: boolean): void;
+  colSum(x: number, out: number, rows: number, cols: number): void;
+  copyBlock(src: number, dst: number, rows: number, width: number, srcStride: number, dstStride: number): void;
+  /** The stock Relu (NaN stays NaN, -0 becomes 0). */
+  relu(x: number, out: number, n: number): void;
+  /** The stock LeakyRelu: x < 0 ? α·x : x. */
+  leakyRelu(x: number, out: number, n: number, alpha: number): void;
+  /** mul(dy, step(x)), the Relu gradient. */
+  reluGrad(dy: number, x: number, out: number, n: number): void;
+  /** where(x > 0, dy, dy·α), the LeakyRelu gradient. */
+  leakyGrad(dy: number, x: number, out: number, n: number, alpha: number): void;
+  /** out = a + b (float32; out may alias an input). */
+  add(a: number, b: number, out: number, n: number): void;
+  /** out[r, :] = x[r, :] + b. */
+  addRow(x: number, b: number, out: number, rows: number, cols: number): void;
+  /** out [S, H] = 0, then rows of x added to rows ids[e] in edge order. */
+  segmentSum(x: number, ids: number, out: number, E: number, H: number, S: number): void;
+  /** out[e, :] = x[ids[e], :]. */
+  gatherRows(x: number, ids: number, out: number, E: number, H: number): void;
 }
 
 /** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
 interface EmscriptenModule {
+  _malloc(bytes: number): number;
+  _free(pointer: number): void;
   asm?: { memory?: unknown };
   wasmMemory?: unknown;
   wasmExports?: { memory?: unknown };
@@ -102,20 +151,70 @@ export function setSimdKernelsEnabled(enabled: boolean): void {
   disabled = !enabled;
 }
 
-function load(backend: BackendWasm): SimdKernels | null {
+/** The memory our module may import: the backend's own, unless it is shared (a threaded build). */
+function usableMemory(backend: BackendWasm): WebAssembly.Memory | null {
   const memory = backendMemory(backend);
-  // A threaded build shares its memory; our module imports a plain one.
   if (memory == null || (typeof SharedArrayBuffer !== 'undefined' && memory.buffer instanceof SharedArrayBuffer)) return null;
-  let exports: Exports;
+  return memory;
+}
+
+function load(backend: BackendWasm): SimdKernels | null {
+  const memory = usableMemory(backend);
+  if (memory == null) return null;
   try {
-    // Synchronous compile is allowed here: the module is ~1 kB (browsers cap sync compiles at 4 kB on the main thread).
+    // Synchronous compile: fine in workers and Node. A browser's main thread refuses modules over 4 kB
+    // this way, which is why initBackend prepares the module asynchronously first (prepareSimdKernels).
     const module = new WebAssembly.Module(decode(KERNELS_WASM_BASE64) as BufferSource);
-    exports = new WebAssembly.Instance(module, { env: { memory } }).exports as unknown as Exports;
+    return bind(backend, memory, new WebAssembly.Instance(module, { env: { memory } }).exports as unknown as Exports);
   } catch {
     return null; // no WASM SIMD here: the stock path is used
   }
+}
+
+/** Compile and instantiate the module asynchronously (allowed everywhere) and keep it for this backend. */
+export async function prepareSimdKernels(backend: BackendWasm): Promise<void> {
+  const key = backend.wasm as unknown as object;
+  if (loaded.has(key)) return;
+  const memory = usableMemory(backend);
+  let kernels: SimdKernels | null = null;
+  if (memory != null) {
+    try {
+      const { instance } = await WebAssembly.instantiate(decode(KERNELS_WASM_BASE64) as BufferSource, { env: { memory } });
+      kernels = bind(backend, memory, instance.exports as unknown as Exports);
+    } catch {
+      kernels = null;
+    }
+  }
+  if (!loaded.has(key)) loaded.set(key, kernels);
+}
+
+function bind(backend: BackendWasm, memory: WebAssembly.Memory, exports: Exports): SimdKernels {
   const offset = (t: TensorInfo): number => backend.dataIdMap.get(t.dataId)!.memoryOffset;
+  const module = backend.wasm as unknown as EmscriptenModule;
+  const raw: RawSimd = {
+    memory,
+    offset,
+    malloc: (bytes) => module._malloc(bytes),
+    free: (pointer) => module._free(pointer),
+    mmNN: (a, b, c, K, M, N, bias, relu) => exports.mm_nn(a, b, c, K, M, N, bias, relu ? 1 : 0),
+    mmTN: (a, b, c, K, M, N) => exports.mm_tn(a, b, c, K, M, N),
+    gatherPairAdd: (p, src, dst, b, out, E, H) => exports.gather_pair_add(p, src, dst, b, out, E, H),
+    scatterPair: (dy, src, dst, out, nodes, E, H) => exports.scatter_pair(dy, src, dst, out, nodes, E, H),
+    scatterByArg: (dy, arg, out, rows, n, C) => exports.scatter_by_arg(dy, arg, out, rows, n, C),
+    segmentExtreme: (x, ids, vals, arg, E, C, S, isMax) => exports.segment_extreme(x, ids, vals, arg, E, C, S, isMax ? 1 : 0),
+    colSum: (x, out, rows, cols) => exports.col_sum(x, out, rows, cols),
+    copyBlock: (src, dst, rows, width, srcStride, dstStride) => exports.copy_block(src, dst, rows, width, srcStride, dstStride),
+    relu: (x, out, n) => exports.relu(x, out, n),
+    leakyRelu: (x, out, n, alpha) => exports.leaky_relu(x, out, n, alpha),
+    reluGrad: (dy, x, out, n) => exports.relu_grad(dy, x, out, n),
+    leakyGrad: (dy, x, out, n, alpha) => exports.leaky_grad(dy, x, out, n, alpha),
+    add: (a, b, out, n) => exports.add(a, b, out, n),
+    addRow: (x, b, out, rows, cols) => exports.add_row(x, b, out, rows, cols),
+    segmentSum: (x, ids, out, E, H, S) => exports.segment_sum(x, ids, out, E, H, S),
+    gatherRows: (x, ids, out, E, H) => exports.gather_rows(x, ids, out, E, H),
+  };
   return {
+    raw,
     matMulTN(a, b, c, K, M, N) {
       exports.mm_tn(offset(a), offset(b), offset(c), K, M, N);
     },

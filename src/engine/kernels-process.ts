@@ -1,0 +1,532 @@
+/**
+ * The whole process phase of the message-passing network, T steps of
+ *
+ *   P = h·[W_s | W_d]              pre = P[src, :H] + P[dst, H:] + ê·W_e (+ b)
+ *   m = act(pre)·W₂ (+ b₂)         a = ⊕_{e→v} m_e        (sum, mean, max, min)
+ *   h ← h + (act([h, a, x̂]·W_u (+ b_u)))·W_u2 (+ b_u2)
+ *
+ * as ONE kernel forward and ONE kernel backward, for the mlp message and mlp
+ * update. Why: the presets' batches are tiny (about 150 nodes and 350 edges),
+ * so the stock composition spent most of a training step in per-launch
+ * bookkeeping — about 97 tfjs kernel launches per message-passing step, 2,700
+ * per training step. Fused, a whole training step launches a few dozen.
+ *
+ * Same bits by construction. Every float32 operation of the stock composition
+ * (src/model/network.ts on the WASM backend with Farfield's kernels) is
+ * repeated in the same order: products on the same SIMD matmul (k order from
+ * the bias or 0), the same gather/scatter/segment kernels, elementwise ops
+ * with the stock kernels' exact rules (a NaN stays NaN through relu, -0 stays
+ * -0 through leaky relu), and every gradient that several uses send to one
+ * tensor added in the order tfjs's tape adds them: for a weight, step T's
+ * share first, then T−1 …; for a state hᵗ⁻¹, the residual's, then the
+ * concat's, then the first layer's. Under a gradient tape tfjs does not fuse a
+ * relu into its matmul (the product, then + b, then relu); outside one it does
+ * (bias first, then the product); the forward kernel follows whichever applies
+ * (`record`). test/engine/process-kernel.test.ts compares every value and
+ * every gradient with `Object.is` against the stock path.
+ *
+ * The forward kernel, when recording, also returns a stash: each step's
+ * state, pre-activations, messages' activations, concat, hidden layer and
+ * arg-extremes, which the backward kernel reads instead of recomputing.
+ * Scratch memory is one block per backend, grown when a batch needs more and
+ * reused by every later launch.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
+import { simdKernels, type RawSimd } from './simd/simd-kernels.ts';
+
+export const PROCESS_KERNELS = { forward: 'FarfieldProcess', backward: 'FarfieldProcessGrad' } as const;
+
+export type ProcessAggregator = 'sum' | 'mean' | 'max' | 'min';
+export type ProcessActivation = 'relu' | 'leaky-relu';
+
+export interface ProcessAttrs {
+  steps: number;
+  aggregator: ProcessAggregator;
+  activation: ProcessActivation;
+  /** Under a gradient tape: unfused update relu and a stash for the backward kernel. */
+  record: boolean;
+  hasMessageBias: boolean;
+  hasUpdateBias: boolean;
+  hasOutputBias: boolean;
+}
+
+/** Leaky relu's slope as the stock kernel applies it (the attribute is rounded to float32). */
+const LEAKY = Math.fround(0.01);
+
+/** Float offsets of one step's saved values inside the stash. */
+interface StepLayout {
+  h: number;
+  pre: number;
+  act: number;
+  concat: number;
+  x: number;
+  hidden: number;
+  arg: number;
+  size: number;
+}
+
+function stepLayout(N: number, E: number, H: number, extreme: boolean): StepLayout {
+  const NH = N * H;
+  const EH = E * H;
+  const h = 0;
+  const pre = h + NH;
+  const act = pre + EH;
+  const concat = act + EH;
+  const x = concat + 3 * NH;
+  const hidden = x + NH;
+  const arg = hidden + NH;
+  return { h, pre, act, concat, x, hidden, arg, size: arg + (extreme ? NH : 0) };
+}
+
+// ------------------------------------------------------------ scratch ----
+
+const arenas = new WeakMap<RawSimd, { pointer: number; bytes: number }>();
+
+/** A block of at least `bytes` bytes, reused across launches (kernels never overlap). */
+function scratch(raw: RawSimd, bytes: number): number {
+  let arena = arenas.get(raw);
+  if (arena == null || arena.bytes < bytes) {
+    if (arena != null) raw.free(arena.pointer);
+    const size = Math.max(bytes, Math.ceil((arena?.bytes ?? 0) * 1.5), 1 << 16);
+    arena = { pointer: raw.malloc(size), bytes: size };
+    if (arena.pointer === 0) throw new Error(`engine/process: could not allocate ${size} bytes of scratch memory`);
+    arenas.set(raw, arena);
+  }
+  return arena.pointer;
+}
+
+/** Hand out consecutive float-sized slices of one block (byte pointers). */
+function carve(base: number, sizes: Record<string, number>): Record<string, number> {
+  const out: Record<string, number> = {};
+  let at = base;
+  for (const [name, floats] of Object.entries(sizes)) {
+    out[name] = at;
+    at += 4 * floats;
+  }
+  return out;
+}
+
+function totalFloats(sizes: Record<string, number>): number {
+  return Object.values(sizes).reduce((a, b) => a + b, 0);
+}
+
+// ------------------------------------------------------ elementwise ----
+// Elementwise work runs on the SIMD module (src/engine/simd/kernels.wat: relu, leaky_relu, relu_grad,
+// leaky_grad, add, add_row, segment_sum, gather_rows, copy_block), each with the stock kernel's rule;
+// what is left here in JavaScript is copying, transposing the weights once per launch, and the mean's
+// division (one float32 division per value either way). F is a Float32Array over the heap; indices
+// are float indices (byte pointer >> 2).
+
+function copy(F: Float32Array, out: number, x: number, n: number): void {
+  F.copyWithin(out, x, x + n);
+}
+
+/** W [R, C] → Wᵀ [C, R] (a copy: the stock path transposes before every A·Bᵀ). */
+function transpose(F: Float32Array, out: number, w: number, R: number, C: number): void {
+  for (let r = 0; r < R; r++) for (let c = 0; c < C; c++) F[out + c * R + r] = F[w + r * C + c]!;
+}
+
+function segmentCountsOf(I: Int32Array, dst: number, E: number, N: number): Int32Array {
+  const counts = new Int32Array(N);
+  for (let e = 0; e < E; e++) counts[I[dst + e]!]!++;
+  return counts;
+}
+
+function checkIds(I: Int32Array, ids: number, E: number, N: number, what: string): void {
+  for (let e = 0; e < E; e++) {
+    const v = I[ids + e]!;
+    if (!(v >= 0 && v < N)) throw new Error(`engine/process: ${what} id ${v} at edge ${e} is out of range 0..${N - 1}`);
+  }
+}
+
+// ------------------------------------------------------------ kernels ----
+
+interface Tensors {
+  [name: string]: tf.TensorInfo;
+}
+
+function attrsOf(attrs: tf.NamedAttrMap | undefined): ProcessAttrs {
+  const a = (attrs ?? {}) as unknown as ProcessAttrs;
+  return {
+    steps: a.steps,
+    aggregator: a.aggregator,
+    activation: a.activation,
+    record: a.record,
+    hasMessageBias: a.hasMessageBias,
+    hasUpdateBias: a.hasUpdateBias,
+    hasOutputBias: a.hasOutputBias,
+  };
+}
+
+function rawOf(backend: BackendWasm): RawSimd {
+  const simd = simdKernels(backend);
+  if (simd == null) throw new Error('engine/process: the fused process kernel needs the SIMD module');
+  return simd.raw;
+}
+
+const floatIndex = (pointer: number) => pointer >> 2;
+
+function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; attrs?: tf.NamedAttrMap }): tf.TensorInfo[] {
+  const backend = args.backend as BackendWasm; // registered for 'wasm' only
+  const raw = rawOf(backend);
+  const at = attrsOf(args.attrs);
+  const t = args.inputs as Tensors;
+  const encoded = t['encoded']!;
+  const N = encoded.shape[0]!;
+  const H = encoded.shape[1]!;
+  const E = t['src']!.shape[0]!;
+  const T = at.steps;
+  const extreme = at.aggregator === 'max' || at.aggregator === 'min';
+  const layout = stepLayout(N, E, H, extreme);
+  const NH = N * H;
+  const EH = E * H;
+
+  const hOut = backend.makeOutput([N, H], 'float32');
+  const stash = at.record ? backend.makeOutput([T * layout.size], 'float32') : null;
+  // Outside a tape nothing is kept: one step's worth of values is reused. The state lives in the output
+  // and is updated in place (every read of hᵗ⁻¹ comes before the residual add that overwrites it).
+  const sizes = {
+    P: 2 * NH,
+    m: EH,
+    a: NH,
+    out: NH,
+    ...(stash == null ? { step: layout.size } : {}),
+  };
+  const s = carve(scratch(raw, 4 * totalFloats(sizes)), sizes);
+  const ptr = (name: string) => raw.offset(t[name]!);
+  const src = ptr('src');
+  const dst = ptr('dst');
+  const bias = (has: boolean, name: string) => (has ? ptr(name) : 0);
+  const b2m = bias(at.hasMessageBias, 'b2m');
+  const bu = bias(at.hasUpdateBias, 'bu');
+  const b2u = bias(at.hasOutputBias, 'b2u');
+
+  // Views only now, after every allocation.
+  const F = new Float32Array(raw.memory.buffer);
+  const I = new Int32Array(raw.memory.buffer);
+  checkIds(I, floatIndex(src), E, N, 'source');
+  checkIds(I, floatIndex(dst), E, N, 'destination');
+  const counts = at.aggregator === 'mean' ? segmentCountsOf(I, floatIndex(dst), E, N) : null;
+
+  const stepBase = (step: number): number => (stash != null ? raw.offset(stash) + 4 * step * layout.size : s['step']!);
+  const h = raw.offset(hOut);
+  const hi = floatIndex(h);
+  copy(F, hi, floatIndex(raw.offset(encoded)), NH);
+  for (let step = 0; step < T; step++) {
+    const base = stepBase(step);
+    const p = (k: keyof StepLayout) => base + 4 * layout[k];
+    if (stash != null) copy(F, floatIndex(p('h')), hi, NH);
+    // message: first layer per operand, gathered per edge with the constant edge term
+    raw.mmNN(h, ptr('jm'), s['P']!, H, N, 2 * H, 0, false);
+    raw.gatherPairAdd(s['P']!, src, dst, ptr('edgeTerm'), p('pre'), E, H);
+    if (at.activation === 'relu') raw.relu(p('pre'), p('act'), EH);
+    else raw.leakyRelu(p('pre'), p('act'), EH, LEAKY);
+    raw.mmNN(p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
+    // aggregate
+    const a = floatIndex(s['a']!);
+    if (extreme) {
+      raw.segmentExtreme(s['m']!, dst, s['a']!, p('arg'), E, H, N, at.aggregator === 'max');
+    } else {
+      raw.segmentSum(s['m']!, dst, s['a']!, E, H, N);
+      if (counts != null) {
+        // Views go stale only when memory grows, which no kernel call does.
+        for (let v = 0; v < N; v++) {
+          const k = counts[v]!;
+          if (k > 1) for (let c = 0; c < H; c++) F[a + v * H + c] = F[a + v * H + c]! / k;
+        }
+      }
+    }
+    raw.copyBlock(h, p('concat'), N, H, H, 3 * H);
+    raw.copyBlock(s['a']!, p('concat') + 4 * H, N, H, H, 3 * H);
+    raw.copyBlock(raw.offset(encoded), p('concat') + 8 * H, N, H, H, 3 * H);
+    // update: hidden layer, output layer, residual
+    if (at.activation === 'relu' && at.record) {
+      raw.mmNN(p('concat'), ptr('ju'), p('x'), 3 * H, N, H, 0, false);
+      if (bu !== 0) raw.addRow(p('x'), bu, p('x'), N, H);
+      raw.relu(p('x'), p('hidden'), NH);
+    } else if (at.activation === 'relu') {
+      raw.mmNN(p('concat'), ptr('ju'), p('hidden'), 3 * H, N, H, bu, true);
+    } else {
+      raw.mmNN(p('concat'), ptr('ju'), p('x'), 3 * H, N, H, bu, false);
+      raw.leakyRelu(p('x'), p('hidden'), NH, LEAKY);
+    }
+    raw.mmNN(p('hidden'), ptr('w2u'), s['out']!, H, N, H, b2u, false);
+    raw.add(h, s['out']!, h, NH);
+  }
+  return stash != null ? [hOut, stash] : [hOut];
+}
+
+/** The backward kernel's outputs, in order (biases only where the network has them). */
+function gradientNames(at: ProcessAttrs): string[] {
+  return [
+    'encoded',
+    'edgeTerm',
+    'jm',
+    'w2m',
+    ...(at.hasMessageBias ? ['b2m'] : []),
+    'ju',
+    ...(at.hasUpdateBias ? ['bu'] : []),
+    'w2u',
+    ...(at.hasOutputBias ? ['b2u'] : []),
+  ];
+}
+
+function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; attrs?: tf.NamedAttrMap }): tf.TensorInfo[] {
+  const backend = args.backend as BackendWasm; // registered for 'wasm' only
+  const raw = rawOf(backend);
+  const at = attrsOf(args.attrs);
+  const t = args.inputs as Tensors;
+  const dy = t['dy']!;
+  const N = dy.shape[0]!;
+  const H = dy.shape[1]!;
+  const E = t['src']!.shape[0]!;
+  const T = at.steps;
+  const extreme = at.aggregator === 'max' || at.aggregator === 'min';
+  const layout = stepLayout(N, E, H, extreme);
+  const NH = N * H;
+  const EH = E * H;
+  const HH = H * H;
+
+  const shapes: Record<string, number[]> = {
+    encoded: [N, H],
+    edgeTerm: [E, H],
+    jm: [H, 2 * H],
+    w2m: [H, H],
+    b2m: [H],
+    ju: [3 * H, H],
+    bu: [H],
+    w2u: [H, H],
+    b2u: [H],
+  };
+  const names = gradientNames(at);
+  const outs = names.map((name) => backend.makeOutput(shapes[name]!, 'float32'));
+  const out = Object.fromEntries(names.map((name, i) => [name, outs[i]!]));
+  const sizes = {
+    G: NH,
+    dHidden: NH,
+    dX: NH,
+    dConcat: 3 * NH,
+    dhc: NH,
+    da: NH,
+    dencc: NH,
+    dm: EH,
+    dAct: EH,
+    dPre: EH,
+    dP: 2 * NH,
+    dhp: NH,
+    gW2u: HH,
+    gJu: 3 * HH,
+    gW2m: HH,
+    gJm: 2 * HH,
+    gB: H,
+    w2uT: HH,
+    juT: 3 * HH,
+    w2mT: HH,
+    jmT: 2 * HH,
+  };
+  const s = carve(scratch(raw, 4 * totalFloats(sizes)), sizes);
+  const ptr = (name: string) => raw.offset(t[name]!);
+  const o = (name: string) => raw.offset(out[name]!);
+  const src = ptr('src');
+  const dst = ptr('dst');
+
+  const F = new Float32Array(raw.memory.buffer);
+  const I = new Int32Array(raw.memory.buffer);
+  const fi = floatIndex;
+  const counts = at.aggregator === 'mean' ? segmentCountsOf(I, fi(dst), E, N) : null;
+  // The stock path transposes each weight before every A·Bᵀ; the weights do not change during a step.
+  transpose(F, fi(s['w2uT']!), fi(ptr('w2u')), H, H);
+  transpose(F, fi(s['juT']!), fi(ptr('ju')), 3 * H, H);
+  transpose(F, fi(s['w2mT']!), fi(ptr('w2m')), H, H);
+  transpose(F, fi(s['jmT']!), fi(ptr('jm')), H, 2 * H);
+  copy(F, fi(s['G']!), fi(ptr('dy')), NH);
+
+  /** A chain of gradients for one tensor: the first share is written, later ones added. */
+  const chains = new Set<string>();
+  const into = (name: string, temp: number): number => (chains.has(name) ? temp : o(name));
+  const settle = (name: string, temp: number, n: number) => {
+    if (chains.has(name)) raw.add(o(name), temp, o(name), n);
+    else chains.add(name);
+  };
+  const add = (name: string, g: number, n: number) => {
+    if (chains.has(name)) raw.add(o(name), g, o(name), n);
+    else {
+      copy(F, fi(o(name)), fi(g), n);
+      chains.add(name);
+    }
+  };
+
+  const stash = raw.offset(t['stash']!);
+  for (let step = T - 1; step >= 0; step--) {
+    const base = stash + 4 * step * layout.size;
+    const p = (k: keyof StepLayout) => base + 4 * layout[k];
+    const G = s['G']!;
+    // output layer of the update: out = hidden·W_u2 (+ b_u2)
+    raw.mmNN(G, s['w2uT']!, s['dHidden']!, H, N, H, 0, false);
+    let g = into('w2u', s['gW2u']!);
+    raw.mmTN(p('hidden'), G, g, N, H, H);
+    settle('w2u', g, HH);
+    if (at.hasOutputBias) {
+      g = into('b2u', s['gB']!);
+      raw.colSum(G, g, N, H);
+      settle('b2u', g, H);
+    }
+    // hidden layer: hidden = act(x), x = [h, a, x̂]·W_u (+ b_u)
+    if (at.activation === 'relu') raw.reluGrad(s['dHidden']!, p('x'), s['dX']!, NH);
+    else raw.leakyGrad(s['dHidden']!, p('x'), s['dX']!, NH, LEAKY);
+    if (at.hasUpdateBias) {
+      g = into('bu', s['gB']!);
+      raw.colSum(s['dX']!, g, N, H);
+      settle('bu', g, H);
+    }
+    raw.mmNN(s['dX']!, s['juT']!, s['dConcat']!, H, N, 3 * H, 0, false);
+    g = into('ju', s['gJu']!);
+    raw.mmTN(p('concat'), s['dX']!, g, N, 3 * H, H);
+    settle('ju', g, 3 * HH);
+    raw.copyBlock(s['dConcat']!, s['dhc']!, N, H, 3 * H, H);
+    raw.copyBlock(s['dConcat']! + 4 * H, s['da']!, N, H, 3 * H, H);
+    raw.copyBlock(s['dConcat']! + 8 * H, s['dencc']!, N, H, 3 * H, H);
+    // aggregation
+    const da = fi(s['da']!);
+    if (extreme) {
+      raw.scatterByArg(s['da']!, p('arg'), s['dm']!, E, NH, H);
+    } else {
+      if (counts != null) {
+        for (let v = 0; v < N; v++) {
+          const k = counts[v]! > 1 ? counts[v]! : 1;
+          for (let c = 0; c < H; c++) F[da + v * H + c] = F[da + v * H + c]! / k;
+        }
+      }
+      raw.gatherRows(s['da']!, dst, s['dm']!, E, H);
+    }
+    // message second layer: m = act(pre)·W₂ (+ b₂)
+    raw.mmNN(s['dm']!, s['w2mT']!, s['dAct']!, H, E, H, 0, false);
+    g = into('w2m', s['gW2m']!);
+    raw.mmTN(p('act'), s['dm']!, g, E, H, H);
+    settle('w2m', g, HH);
+    if (at.hasMessageBias) {
+      g = into('b2m', s['gB']!);
+      raw.colSum(s['dm']!, g, E, H);
+      settle('b2m', g, H);
+    }
+    if (at.activation === 'relu') raw.reluGrad(s['dAct']!, p('pre'), s['dPre']!, EH);
+    else raw.leakyGrad(s['dAct']!, p('pre'), s['dPre']!, EH, LEAKY);
+    // first layer: pre = P[src, :H] + P[dst, H:] + edge term, P = h·[W_s | W_d]
+    raw.scatterPair(s['dPre']!, src, dst, s['dP']!, N, E, H);
+    add('edgeTerm', s['dPre']!, EH);
+    raw.mmNN(s['dP']!, s['jmT']!, s['dhp']!, 2 * H, N, H, 0, false);
+    g = into('jm', s['gJm']!);
+    raw.mmTN(p('h'), s['dP']!, g, N, H, 2 * H);
+    settle('jm', g, 2 * HH);
+    // hᵗ's own uses, in the tape's order: the residual, then the concat, then the first layer
+    if (step > 0) {
+      add('encoded', s['dencc']!, NH);
+      raw.add(G, s['dhc']!, G, NH);
+      raw.add(G, s['dhp']!, G, NH);
+    } else {
+      // h⁰ is x̂ itself: its residual, concat (state slot, then input slot) and first-layer shares join x̂'s chain
+      add('encoded', G, NH);
+      add('encoded', s['dhc']!, NH);
+      add('encoded', s['dencc']!, NH);
+      add('encoded', s['dhp']!, NH);
+    }
+  }
+  for (const name of names) if (!chains.has(name)) F.fill(0, fi(o(name)), fi(o(name)) + shapes[name]!.reduce((a, b) => a * b, 1));
+  return outs;
+}
+
+// ------------------------------------------------------- registration ----
+
+let enabled = true;
+
+/** Turn the fused process kernel off (benchmarks and tests compare it with the stock composition). */
+export function setFusedProcessEnabled(on: boolean): void {
+  enabled = on;
+}
+
+export function fusedProcessEnabled(): boolean {
+  return enabled;
+}
+
+export function registerProcessKernels(): void {
+  if (tf.getKernel(PROCESS_KERNELS.forward, 'wasm') == null) {
+    tf.registerKernel({ kernelName: PROCESS_KERNELS.forward, backendName: 'wasm', kernelFunc: forwardKernel as unknown as tf.KernelFunc });
+  }
+  if (tf.getKernel(PROCESS_KERNELS.backward, 'wasm') == null) {
+    tf.registerKernel({ kernelName: PROCESS_KERNELS.backward, backendName: 'wasm', kernelFunc: backwardKernel as unknown as tf.KernelFunc });
+  }
+}
+
+/** The process phase's tensors: the encoded inputs, the edge term, the edges and the weights it reads. */
+export interface ProcessInputs {
+  encoded: tf.Tensor2D;
+  edgeTerm: tf.Tensor2D;
+  src: tf.Tensor1D;
+  dst: tf.Tensor1D;
+  /** [W_s | W_d], [H, 2H] */
+  jm: tf.Tensor2D;
+  w2m: tf.Tensor2D;
+  b2m?: tf.Tensor;
+  /** [W_h; W_a; W_x], [3H, H] */
+  ju: tf.Tensor2D;
+  bu?: tf.Tensor;
+  w2u: tf.Tensor2D;
+  b2u?: tf.Tensor;
+}
+
+/**
+ * h after T steps, through the fused kernels. Under a gradient tape the pair
+ * is one custom-gradient node whose backward is the fused backward kernel.
+ */
+export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 'record' | 'hasMessageBias' | 'hasUpdateBias' | 'hasOutputBias'>): tf.Tensor2D {
+  registerProcessKernels();
+  const attrs: ProcessAttrs = {
+    ...options,
+    record: false,
+    hasMessageBias: inputs.b2m != null,
+    hasUpdateBias: inputs.bu != null,
+    hasOutputBias: inputs.b2u != null,
+  };
+  const engine = tf.engine();
+  const kernelInputs = (): tf.NamedTensorMap => {
+    const map: tf.NamedTensorMap = {
+      encoded: inputs.encoded,
+      edgeTerm: inputs.edgeTerm,
+      src: inputs.src,
+      dst: inputs.dst,
+      jm: inputs.jm,
+      w2m: inputs.w2m,
+      ju: inputs.ju,
+      w2u: inputs.w2u,
+    };
+    if (inputs.b2m) map['b2m'] = inputs.b2m;
+    if (inputs.bu) map['bu'] = inputs.bu;
+    if (inputs.b2u) map['b2u'] = inputs.b2u;
+    return map;
+  };
+  // tfjs's own rule for "under a tape" (it decides whether a relu may fuse into its matmul the same way).
+  if (engine.state.gradientDepth === 0) {
+    return (engine.runKernel(PROCESS_KERNELS.forward, kernelInputs(), attrs as unknown as tf.NamedAttrMap) as tf.Tensor[])[0] as tf.Tensor2D;
+  }
+  const recordAttrs = { ...attrs, record: true } as unknown as tf.NamedAttrMap;
+  const names = gradientNames(attrs);
+  const differentiable = names.map((name) => kernelInputs()[name]!);
+  const node = tf.customGrad((...args: (tf.Tensor | tf.GradSaveFunc)[]) => {
+    const save = args[args.length - 1] as tf.GradSaveFunc;
+    const [hT, stash] = engine.runKernel(PROCESS_KERNELS.forward, kernelInputs(), recordAttrs) as tf.Tensor[];
+    save([stash!, inputs.src, inputs.dst, inputs.jm, inputs.w2m, inputs.ju, inputs.w2u]);
+    return {
+      value: hT!,
+      gradFunc: (dy: tf.Tensor | tf.Tensor[], saved: tf.Tensor[]) => {
+        const [kept, src, dst, jm, w2m, ju, w2u] = saved;
+        return engine.runKernel(
+          PROCESS_KERNELS.backward,
+          { dy: dy as tf.Tensor, stash: kept!, src: src!, dst: dst!, jm: jm!, w2m: w2m!, ju: ju!, w2u: w2u! },
+          recordAttrs,
+        ) as tf.Tensor[];
+      },
+    };
+  });
+  return node(...differentiable) as tf.Tensor2D;
+}

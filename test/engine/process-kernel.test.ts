@@ -1,0 +1,178 @@
+/**
+ * The fused process kernels (src/engine/kernels-process.ts) must give exactly
+ * the bits of the stock composition they replace, forward and backward, for
+ * every aggregator and activation they cover, with and without biases, under a
+ * gradient tape (unfused relu) and outside one (relu fused into the matmul).
+ * The reference is the stock path itself (differential testing, common
+ * practice); a directional central difference checks the gradient against the
+ * loss itself (common practice for gradient checking).
+ */
+import { afterEach, beforeAll, describe, expect, it } from 'vitest';
+import * as tf from '@tensorflow/tfjs-core';
+import { initBackend } from '../../src/engine/backend.ts';
+import { setFusedProcessEnabled } from '../../src/engine/kernels-process.ts';
+import { modelSchema } from '../../src/experiment/spec.ts';
+import { MessagePassingNetwork, type NetworkInputs } from '../../src/model/network.ts';
+import { fusedProcessApplies } from '../../src/model/fused-process.ts';
+import { buildInstance } from '../../src/tasks/sample.ts';
+import type { TaskInstance } from '../../src/tasks/types.ts';
+import { makeBatch, type FeatureTransforms } from '../../src/train/batch.ts';
+import { uploadBatch, type BatchTensors } from '../../src/train/tensors.ts';
+import { maskedLoss } from '../../src/train/loss.ts';
+import { train } from '../../src/train/trainer.ts';
+import { Rng } from '../../src/util/rng.ts';
+
+const TRANSFORMS: FeatureTransforms = { node: ['identity'], edge: ['identity'], nodeStats: [], edgeStats: [] };
+
+beforeAll(async () => {
+  await initBackend('wasm');
+});
+
+afterEach(() => setFusedProcessEnabled(true));
+
+function instances(family: string, count: number, weightRange: [number, number], seed = 3): TaskInstance[] {
+  const rng = new Rng(seed);
+  return Array.from({ length: count }, (_, i) => {
+    const r = rng.fork(i);
+    const params = family === 'er' ? { edgeProbability: 0.3 } : {};
+    return buildInstance('shortest-path', family, r.int(8, 14), r, { weightRange, params }).instance;
+  });
+}
+
+interface Outcome {
+  loss: number;
+  grads: Record<string, Float32Array>;
+  evaluated: Float32Array;
+}
+
+function lossAndGrads(network: MessagePassingNetwork, batch: BatchTensors, steps: number): Outcome {
+  const vars = [...network.params.vars.values()];
+  return tf.tidy(() => {
+    const { value, grads } = tf.variableGrads(
+      () => maskedLoss(network.forward(batch, { steps }).prediction, batch.target, batch.mask, 'huber'),
+      vars,
+    );
+    const evaluated = network.forward(batch, { steps }).prediction.dataSync() as Float32Array;
+    return {
+      loss: value.dataSync()[0]!,
+      grads: Object.fromEntries(Object.entries(grads).map(([name, g]) => [name, g.dataSync() as Float32Array])),
+      evaluated: evaluated.slice(),
+    };
+  });
+}
+
+/** Count of values that differ under Object.is (so NaN = NaN and 0 ≠ -0). */
+function differing(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let n = a.length === b.length ? 0 : Math.max(a.length, b.length);
+  for (let i = 0; i < Math.min(a.length, b.length); i++) if (!Object.is(a[i], b[i])) n++;
+  return n;
+}
+
+function compareWays(model: Record<string, unknown>, data: TaskInstance[], steps: number): void {
+  const options = modelSchema.parse({ hidden: 32, steps: { rule: 'fixed', count: steps, trainJitter: 0 }, ...model });
+  const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(11));
+  const batch = uploadBatch(makeBatch(data, TRANSFORMS));
+  try {
+    expect(fusedProcessApplies(options, {}, batch.nodes, batch.src.shape[0], steps)).toBe(true);
+    setFusedProcessEnabled(true);
+    const fused = lossAndGrads(network, batch, steps);
+    setFusedProcessEnabled(false);
+    const stock = lossAndGrads(network, batch, steps);
+    expect(Object.is(fused.loss, stock.loss)).toBe(true);
+    expect(differing(fused.evaluated, stock.evaluated)).toBe(0);
+    expect(Object.keys(fused.grads).sort()).toEqual(Object.keys(stock.grads).sort());
+    for (const name of Object.keys(stock.grads)) expect([name, differing(fused.grads[name]!, stock.grads[name]!)]).toEqual([name, 0]);
+  } finally {
+    setFusedProcessEnabled(true);
+    batch.dispose();
+    network.dispose();
+  }
+}
+
+describe('fused process kernels give the stock composition’s bits', () => {
+  const er = instances('er', 16, [1, 10]);
+  for (const aggregator of ['max', 'sum', 'mean', 'min']) {
+    for (const activation of ['relu', 'leaky-relu']) {
+      it(`${aggregator}, ${activation}, with biases and bias-free`, () => {
+        compareWays({ aggregator, activation }, er, 9);
+        compareWays({ aggregator, activation, bias: false }, er, 9);
+      });
+    }
+  }
+
+  it('ties (every weight equal) and nodes without incoming edges (DAGs), one step and many', () => {
+    const ties = instances('er', 12, [3, 3], 5);
+    for (const aggregator of ['max', 'min']) compareWays({ aggregator }, ties, 6);
+    const dags = instances('dag', 12, [1, 10], 7);
+    for (const aggregator of ['max', 'sum', 'mean']) {
+      compareWays({ aggregator }, dags, 1);
+      compareWays({ aggregator }, dags, 20);
+    }
+  });
+
+  it('a whole training run keeps its loss curve, kept step and weights, and leaves no tensor behind', () => {
+    const data = instances('er', 32, [1, 10], 9);
+    const options = modelSchema.parse({ hidden: 32, aggregator: 'max', steps: { rule: 'nodes', trainJitter: 6 } });
+    const budget = { steps: 12, batchGraphs: 16, learningRate: 0.01, clipNorm: 1, loss: 'huber', validateEvery: 6 } as const;
+    const run = (fused: boolean) => {
+      setFusedProcessEnabled(fused);
+      const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
+      const outcome = train({ network, train: data.slice(0, 24), validation: data.slice(24), transforms: TRANSFORMS, budget, rng: new Rng(4) });
+      const weights = network.params.snapshot();
+      network.dispose();
+      return { outcome, weights };
+    };
+    const before = tf.memory().numTensors;
+    const fused = run(true);
+    expect(tf.memory().numTensors).toBe(before);
+    const stock = run(false);
+    expect(fused.outcome).toEqual(stock.outcome);
+    for (const [name, w] of stock.weights) expect([name, differing(fused.weights.get(name)!, w)]).toEqual([name, 0]);
+  });
+
+  it('a forward and backward pass of 10 steps launches under 150 kernels instead of about 60 more per step', async () => {
+    const data = instances('er', 16, [1, 10], 13);
+    const options = modelSchema.parse({ hidden: 32, aggregator: 'sum', steps: { rule: 'fixed', count: 10, trainJitter: 0 } });
+    const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
+    const batch = uploadBatch(makeBatch(data, TRANSFORMS));
+    const launches = async (fused: boolean) => {
+      setFusedProcessEnabled(fused);
+      const info = await tf.profile(() => {
+        tf.tidy(() => tf.variableGrads(() => maskedLoss(network.forward(batch, { steps: 10 }).prediction, batch.target, batch.mask, 'huber')));
+      });
+      return info.kernels.filter((k) => !k.name.endsWith('__op')).length;
+    };
+    const fused = await launches(true);
+    const stock = await launches(false);
+    batch.dispose();
+    network.dispose();
+    expect(stock - fused).toBeGreaterThan(10 * 60);
+    expect(fused).toBeLessThan(150);
+  });
+
+  it('the fused gradient matches a central difference of the loss along a random direction', () => {
+    const data = instances('er', 16, [1, 10], 17);
+    const options = modelSchema.parse({ hidden: 32, aggregator: 'max', steps: { rule: 'fixed', count: 5, trainJitter: 0 } });
+    const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(19));
+    const batch = uploadBatch(makeBatch(data, TRANSFORMS));
+    const inputs: NetworkInputs = batch;
+    const { grads } = lossAndGrads(network, batch, 5);
+    const rng = new Rng(23);
+    const direction = new Map([...network.params.vars.entries()].map(([name, v]) => [name, Float32Array.from(grads[v.name]!, () => rng.uniform(-1, 1))]));
+    const gradOf = new Map([...network.params.vars.entries()].map(([name, v]) => [name, grads[v.name]!]));
+    const original = network.params.snapshot();
+    const lossAlong = (t: number): number => {
+      const moved = new Map([...original].map(([name, w]) => [name, Float32Array.from(w, (v, i) => v + t * direction.get(name)![i]!)]));
+      network.params.restore(moved);
+      return tf.tidy(() => maskedLoss(network.forward(inputs, { steps: 5 }).prediction, batch.target, batch.mask, 'huber').dataSync()[0]!);
+    };
+    const eps = 1e-3;
+    const numeric = (lossAlong(eps) - lossAlong(-eps)) / (2 * eps);
+    network.params.restore(original);
+    let analytic = 0;
+    for (const [name, d] of direction) d.forEach((v, i) => (analytic += v * gradOf.get(name)![i]!));
+    batch.dispose();
+    network.dispose();
+    expect(Math.abs(numeric - analytic)).toBeLessThan(0.02 * Math.abs(analytic) + 1e-4);
+  });
+});
