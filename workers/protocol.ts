@@ -7,17 +7,19 @@ import type { ExperimentSpec } from '../src/experiment/spec.ts';
 import type { RunPlan } from '../src/experiment/plan.ts';
 import type { RunResult } from '../src/experiment/run.ts';
 import type { BackendName, EngineInfo } from '../src/engine/backend.ts';
+import type { TrainedWeights } from '../src/experiment/saved-network.ts';
 
 export type ToWorker =
   | { type: 'init'; backend: BackendName; threads?: number; wasmPaths?: string | Record<string, string> }
-  | { type: 'run'; id: number; spec: ExperimentSpec; plan: RunPlan }
+  /** keepWeights: also send back the trained network's weights (saved networks). */
+  | { type: 'run'; id: number; spec: ExperimentSpec; plan: RunPlan; keepWeights?: boolean }
   /** Test hook: make the worker throw while running this run (fault-handling tests). */
   | { type: 'crash'; id: number; how: 'throw' | 'exit' };
 
 export type FromWorker =
   | ({ type: 'ready' } & EngineInfo)
   | { type: 'progress'; id: number; step: number; totalSteps: number; loss: number }
-  | { type: 'done'; id: number; result: RunResult; tensors: number }
+  | { type: 'done'; id: number; result: RunResult; tensors: number; weights?: TrainedWeights }
   | { type: 'error'; id: number | null; message: string };
 
 /**

@@ -7,6 +7,9 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { FromWorker, ToWorker } from './protocol.ts';
 import { initBackend, type EngineInfo } from '../src/engine/backend.ts';
 import { executeRun } from '../src/experiment/run.ts';
+import { encodeNetworkWeights, type TrainedWeights } from '../src/experiment/saved-network.ts';
+import type { MessagePassingNetwork } from '../src/model/network.ts';
+import type { FeatureTransforms } from '../src/train/batch.ts';
 import type { SeedData } from '../src/experiment/datasets.ts';
 
 /** Progress messages at most this often, so posting never slows training. */
@@ -44,8 +47,11 @@ export function createWorkerCore(post: (message: FromWorker) => void): (message:
             dataCache = new Map();
           }
           let last = 0;
+          // A holder, not a variable: the hook assigns it inside executeRun.
+          const kept: { network?: MessagePassingNetwork; transforms?: FeatureTransforms } = {};
           const result = executeRun(message.spec, message.plan, {
             dataCache,
+            ...(message.keepWeights ? { keepNetwork: (network: MessagePassingNetwork, transforms: FeatureTransforms) => Object.assign(kept, { network, transforms }) } : {}),
             onProgress: (p) => {
               const now = Date.now();
               if (now - last >= PROGRESS_INTERVAL_MS || p.step === p.totalSteps) {
@@ -54,7 +60,16 @@ export function createWorkerCore(post: (message: FromWorker) => void): (message:
               }
             },
           });
-          post({ type: 'done', id: message.id, result, tensors: tf.memory().numTensors });
+          let weights: TrainedWeights | undefined;
+          const { network, transforms } = kept;
+          if (network && transforms) {
+            try {
+              weights = await encodeNetworkWeights(network, transforms);
+            } finally {
+              network.dispose();
+            }
+          }
+          post({ type: 'done', id: message.id, result, tensors: tf.memory().numTensors, ...(weights ? { weights } : {}) });
           return;
         }
       }

@@ -9,12 +9,14 @@ import { commandMerge } from './commands/merge.ts';
 import { commandBench } from './commands/bench.ts';
 import { commandShare } from './commands/share.ts';
 import { commandReport } from './commands/report.ts';
+import { commandScore } from './commands/score.ts';
 
 const HELP = `farfield — does this message-passing architecture keep working on larger graphs?
 
 Commands:
-  run <preset.json | link> [--seeds N] [--workers K] [--out FILE] [--json] [--shard i/N] [--resume] [--backend wasm|cpu] [--quiet]
+  run <preset.json | link> [--seeds N] [--workers K] [--out FILE] [--json] [--shard i/N] [--resume] [--backend wasm|cpu] [--quiet] [--keep-networks DIR]
       train every arm on every seed, score on the size ladder, print the table and verdicts
+      (--keep-networks: save each trained network as DIR/run<i>-<arm>-seed<s>.json + .bin, TensorFlow.js weights format)
   check <preset.json | link>
       validate; print the normalised spec and its hash
   sample --task ID --family ID --nodes N [--count C] [--seed S] [--scale X] [--weights LO,HI]
@@ -28,6 +30,8 @@ Commands:
       combine shard results (run --shard i/N) and recompute the statistics
   report <results.json> [--out report.html] [--base URL]
       one self-contained HTML file: question, arms, setup, every figure, verdicts with caveats, fingerprint and share link; opens offline, prints to A4
+  score <network.json> [<preset.json | link>] [--json]
+      score a saved network on its own ladder (must reproduce its run's errors exactly) or another preset's, without retraining
   bench [--quick] [--json] [--presets a,b | --skip-presets] [--long-steps N] [--seconds S] [--workers K]
       measure WASM vs CPU training speed, FLOP/s, worker scaling, preset wall times and tensor leaks; check the speed targets
 
@@ -43,6 +47,7 @@ const COMMANDS: Record<string, Command> = {
   merge: commandMerge,
   share: commandShare,
   report: commandReport,
+  score: commandScore,
   bench: commandBench,
 };
 

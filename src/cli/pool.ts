@@ -35,6 +35,8 @@ export interface PoolOptions {
   events?: PoolEvents;
   /** Test hook: inject a fault into these run indices. */
   faults?: ReadonlyMap<number, FaultKind>;
+  /** Send back each finished run's trained weights (run --keep-networks). */
+  keepWeights?: boolean;
 }
 
 export { failedResult };
@@ -65,6 +67,7 @@ export function runPool(spec: ExperimentSpec, plans: readonly RunPlan[], options
       createWorker: () => wrapNodeWorker(new Worker(entry, { resourceLimits: { maxYoungGenerationSizeMb: YOUNG_GENERATION_MB } })),
       events: options.events,
       faults: options.faults,
+      keepWeights: options.keepWeights,
     });
     return pool.done;
   });

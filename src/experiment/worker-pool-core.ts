@@ -26,6 +26,7 @@ import type { RunResult } from './run.ts';
 import type { EngineInfo } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
 import { failedResult } from './run-record.ts';
+import type { TrainedWeights } from './saved-network.ts';
 
 /** The little a pool needs from a worker; each host adapts its own kind. */
 export interface PoolWorker {
@@ -42,7 +43,8 @@ export interface PoolEvents {
   onReady?: (info: EngineInfo) => void;
   onStart?: (plan: RunPlan) => void;
   onProgress?: (plan: RunPlan, step: number, totalSteps: number, loss: number) => void;
-  onResult?: (result: RunResult) => void;
+  /** `weights`: the trained network's, when the pool was asked to keep them and the run finished. */
+  onResult?: (result: RunResult, weights?: TrainedWeights) => void;
 }
 
 /** How many workers of one pool may die before `ready` before it gives up. */
@@ -56,6 +58,8 @@ export interface CorePoolOptions {
   events?: PoolEvents;
   /** Test hook: inject a fault into these run indices. */
   faults?: ReadonlyMap<number, FaultKind>;
+  /** Ask every worker to send back each finished run's trained weights (saved networks). */
+  keepWeights?: boolean;
   /** Deaths before `ready` tolerated per pool (default MAX_START_FAILURES). */
   maxStartFailures?: number;
 }
@@ -91,10 +95,10 @@ export function runPoolCore(spec: ExperimentSpec, plans: readonly RunPlan[], opt
   const finishIfIdle = () => {
     if (active === 0 && (queue.length === 0 || cancelled)) finish();
   };
-  const record = (result: RunResult) => {
+  const record = (result: RunResult, weights?: TrainedWeights) => {
     if (cancelled) return;
     results.push(result);
-    options.events?.onResult?.(result);
+    options.events?.onResult?.(result, weights);
   };
   const giveUp = (reason: string) => {
     gaveUp ??= reason;
@@ -133,7 +137,7 @@ export function runPoolCore(spec: ExperimentSpec, plans: readonly RunPlan[], opt
       options.events?.onStart?.(current);
       const fault = options.faults?.get(current.index);
       if (fault) worker.send({ type: 'crash', id: current.index, how: fault });
-      else worker.send({ type: 'run', id: current.index, spec, plan: current });
+      else worker.send({ type: 'run', id: current.index, spec, plan: current, ...(options.keepWeights ? { keepWeights: true } : {}) });
     };
     worker.listen(
       (message) => {
@@ -150,7 +154,7 @@ export function runPoolCore(spec: ExperimentSpec, plans: readonly RunPlan[], opt
             return;
           case 'done':
             if (!current) return;
-            record(message.result);
+            record(message.result, message.weights);
             next();
             return;
           case 'error':

@@ -14,7 +14,7 @@
  */
 import { z } from 'zod';
 import { buildResults, RESULTS_KIND, type EngineInfo, type ResultsDocument } from '../experiment/results.ts';
-import { SpecError } from '../experiment/spec.ts';
+import { describeIssue, SpecError } from '../experiment/spec.ts';
 import { LIMITS } from '../experiment/limits.ts';
 import type { RunResult } from '../experiment/run-types.ts';
 import { readJsonText, JsonTextError } from '../share/json-text.ts';
@@ -87,11 +87,6 @@ const fileSchema = z.object({
   runs: z.array(run).max(LIMITS.totalRuns.max),
 });
 
-/** "runs[3].ladder[0].metrics.mae" from a schema issue's path. */
-function fieldOf(path: readonly PropertyKey[]): string {
-  return path.reduce<string>((out, key) => (typeof key === 'number' ? `${out}[${key}]` : out ? `${out}.${String(key)}` : String(key)), '');
-}
-
 export interface ReadResults {
   doc: ResultsDocument;
   /** The fingerprint the file carried, when it differs from the one recomputed from its runs. */
@@ -112,7 +107,7 @@ export function readResultsText(text: string, origin: string): ReadResults {
   if (kind !== RESULTS_KIND) throw new ResultsFileError(`${origin}: kind: got ${JSON.stringify(kind ?? null)}, allowed "${RESULTS_KIND}" (the file "farfield run --out" writes)`);
   const parsed = fileSchema.safeParse(raw);
   if (!parsed.success) {
-    const problems = parsed.error.issues.slice(0, 6).map((issue) => `${fieldOf(issue.path)}: ${issue.message}`);
+    const problems = parsed.error.issues.slice(0, 6).map((issue) => describeIssue(issue, raw));
     throw new ResultsFileError(`${origin}: ${problems.join('; ')}`);
   }
   let spec;

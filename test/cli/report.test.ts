@@ -5,23 +5,13 @@
  * the field named.
  */
 import { describe, expect, it } from 'vitest';
-import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
-
-const root = fileURLToPath(new URL('../..', import.meta.url));
-const bin = join(root, 'bin/farfield.mjs');
-const tiny = join(root, 'test/fixtures/tiny.json');
-
-function farfield(...args: string[]) {
-  const r = spawnSync(process.execPath, [bin, ...args], { cwd: root, encoding: 'utf8', timeout: 120_000 });
-  return { code: r.status, stdout: r.stdout, stderr: r.stderr };
-}
+import { farfield, tiny } from './spawn.ts';
 
 /** Every place a file could make a browser fetch something. */
-export function externalReferences(html: string): string[] {
+function externalReferences(html: string): string[] {
   const patterns = [
     /\b(?:src|href|xlink:href|action|poster|data)\s*=\s*["']?\s*(?:https?:)?\/\//gi,
     /url\(\s*["']?\s*(?:https?:)?\/\//gi,

@@ -1,5 +1,6 @@
 import { cpus } from 'node:os';
-import { writeFileSync, renameSync, rmSync } from 'node:fs';
+import { writeFileSync, renameSync, rmSync, mkdirSync } from 'node:fs';
+import { join } from 'node:path';
 import { parse, UsageError, intFlag } from '../args.ts';
 import { loadSpec } from '../load.ts';
 import { planRuns, shardRuns } from '../../experiment/plan.ts';
@@ -12,6 +13,9 @@ import { runPool } from '../pool.ts';
 import { ProgressLine } from '../progress.ts';
 import { renderResults } from '../format.ts';
 import { Journal, readJournal } from '../journal.ts';
+import { attachGraphFiles, graphsFlag } from '../graph-files.ts';
+import { networkFileStem, savedNetworkJson, type TrainedWeights } from '../../experiment/saved-network.ts';
+import type { ExperimentSpec } from '../../experiment/spec.ts';
 
 export function parseShard(value: string | undefined): { index: number; count: number } | undefined {
   if (value === undefined) return undefined;
@@ -30,6 +34,13 @@ function writeAtomically(path: string, text: string): void {
   renameSync(temp, path);
 }
 
+/** Write one trained network as DIR/<stem>.json (manifest, spec, arm, seed) and DIR/<stem>.bin (the shard). */
+function saveNetwork(dir: string, spec: ExperimentSpec, result: RunResult, weights: TrainedWeights): void {
+  const stem = networkFileStem(result);
+  writeFileSync(join(dir, `${stem}.bin`), new Uint8Array(weights.data));
+  writeAtomically(join(dir, `${stem}.json`), JSON.stringify(savedNetworkJson(spec, result, weights, ENGINE_VERSION, `${stem}.bin`), null, 1) + '\n');
+}
+
 export async function commandRun(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
     seeds: { type: 'string' },
@@ -41,12 +52,17 @@ export async function commandRun(args: string[]): Promise<number> {
     backend: { type: 'string' },
     quiet: { type: 'boolean' },
     'inject-fault': { type: 'string' },
+    graphs: { type: 'string' },
+    'keep-networks': { type: 'string' },
   });
-  if (positionals.length !== 1) throw new UsageError('usage: farfield run <preset.json | link> [--seeds N] [--workers K] [--out FILE] [--json]');
+  if (positionals.length !== 1) throw new UsageError('usage: farfield run <preset.json | link> [--seeds N] [--workers K] [--out FILE] [--json] [--keep-networks DIR]');
   const loaded = await loadSpec(positionals[0]);
   let spec = loaded.spec;
   const seeds = intFlag('seeds', values.seeds, LIMITS.seeds.min, LIMITS.seeds.max);
   if (seeds !== undefined) spec = checkSpec({ ...spec, seeds: { ...spec.seeds, count: seeds } });
+  // Graph files (the preset's test.files and --graphs): read, hashed and checked here; their content rides on each run's plan.
+  const graphFiles = await attachGraphFiles(spec, loaded.source === 'file' ? positionals[0]! : null, graphsFlag(values.graphs));
+  spec = graphFiles.spec;
   const workers = intFlag('workers', values.workers, 1, 64) ?? Math.max(1, cpus().length);
   const backend = (values.backend ?? 'wasm') as BackendName;
   if (backend !== 'wasm' && backend !== 'cpu') throw new UsageError(`--backend: got "${values.backend}", allowed wasm | cpu`);
@@ -62,8 +78,14 @@ export async function commandRun(args: string[]): Promise<number> {
     }
   }
 
+  const keepDir = values['keep-networks'];
+  if (keepDir !== undefined) {
+    if (!keepDir) throw new UsageError('--keep-networks: give a folder to write the trained networks into');
+    mkdirSync(keepDir, { recursive: true });
+  }
+
   const hash = hashSpec(spec);
-  let plans = planRuns(spec);
+  let plans = planRuns(spec).map((p) => (graphFiles.files.length ? { ...p, files: graphFiles.files } : p));
   if (shard) plans = shardRuns(plans, shard);
   const journalPath = values.out ? `${values.out}.journal` : null;
   const finished: RunResult[] = journalPath && values.resume ? readJournal(journalPath, hash) : [];
@@ -71,6 +93,7 @@ export async function commandRun(args: string[]): Promise<number> {
   const todo = plans.filter((p) => !finishedIndex.has(p.index));
   const journal = journalPath ? new Journal(journalPath, hash, Boolean(values.resume)) : null;
   if (finished.length && !values.quiet) process.stderr.write(`resuming: ${finished.length} finished run(s) read from ${journalPath}, ${todo.length} to go\n`);
+  if (finished.length && keepDir !== undefined) process.stderr.write(`--keep-networks: the ${finished.length} run(s) read from the journal were trained earlier; only the runs trained now are saved\n`);
   if (!values.quiet) {
     process.stderr.write(`${spec.question}\n${todo.length} run(s) on ${Math.min(workers, Math.max(todo.length, 1))} worker(s), ${backend} backend${shard ? `, shard ${shard.index}/${shard.count}` : ''}\n`);
   }
@@ -81,11 +104,13 @@ export async function commandRun(args: string[]): Promise<number> {
     workers,
     backend,
     faults,
+    keepWeights: keepDir !== undefined,
     events: {
       onReady: (info) => (engine = info),
       onStart: (plan) => progress.start(plan),
       onProgress: (plan, step, total, loss) => progress.progress(plan, step, total, loss),
-      onResult: (result) => {
+      onResult: (result, weights) => {
+        if (keepDir !== undefined && weights) saveNetwork(keepDir, spec, result, weights);
         journal?.append(result);
         progress.result(result);
       },

@@ -1,0 +1,202 @@
+/**
+ * Trained networks saved in TensorFlow.js's weights format: a JSON file whose
+ * `weightsManifest` ([{paths, weights: [{name, shape, dtype}]}], as in a tfjs
+ * model.json) points at one binary shard of little-endian float32 values, in
+ * manifest order, as `tf.io.encodeWeights` writes them. Beside the manifest
+ * the JSON carries what is needed to rebuild and score the network without
+ * retraining: the spec, the arm and seed, the engine version, the feature
+ * transforms with their training-set statistics, and the run's recorded
+ * errors for comparison. Host-agnostic: file access lives in the hosts.
+ *
+ * Weight names are the network's parameter names (`encode.w`,
+ * `message.semiring`, …), so any tfjs reader can load the shard with
+ * `tf.io.decodeWeights(data, manifest[0].weights)`.
+ */
+import * as tf from '@tensorflow/tfjs-core';
+import { z } from 'zod';
+import { armModel, describeIssue, SpecError, TRANSFORMS, type ExperimentSpec } from './spec.ts';
+import type { RunResult } from './run-types.ts';
+import { seedRoot } from './datasets.ts';
+import { getTask } from '../tasks/registry.ts';
+import { MessagePassingNetwork } from '../model/network.ts';
+import type { FeatureTransforms } from '../train/batch.ts';
+import { validateUntrusted } from '../share/spec-gate.ts';
+import { specHash } from './results.ts';
+
+export const NETWORK_FORMAT = 'farfield-network';
+
+/** What a worker hands back when asked to keep a run's trained weights. */
+export interface TrainedWeights {
+  specs: tf.io.WeightsManifestEntry[];
+  data: ArrayBuffer;
+  transforms: FeatureTransforms;
+}
+
+export interface SavedRung {
+  family: string;
+  /** Null for the in-distribution set (graphs of every training size). */
+  size: number | null;
+  scale: number;
+  mae: number | null;
+  mre: number | null;
+  miss: number | null;
+}
+
+/** The JSON half of a saved network. */
+export interface SavedNetwork {
+  format: typeof NETWORK_FORMAT;
+  version: 1;
+  generatedBy: string;
+  engineVersion: string;
+  spec: ExperimentSpec;
+  specHash: string;
+  arm: string;
+  armIndex: number;
+  seed: number;
+  seedIndex: number;
+  runIndex: number;
+  transforms: FeatureTransforms;
+  /** The errors the run that trained this network recorded (JSON null where not finite). */
+  recorded: { keptStep: number; inDistribution: SavedRung | null; ladder: SavedRung[] };
+  weightsManifest: Array<{ paths: string[]; weights: tf.io.WeightsManifestEntry[] }>;
+}
+
+/** Encode every parameter of a trained network (the caller still owns and disposes it). */
+export async function encodeNetworkWeights(network: MessagePassingNetwork, transforms: FeatureTransforms): Promise<TrainedWeights> {
+  const named: tf.NamedTensorMap = {};
+  for (const [name, variable] of network.params.vars) named[name] = variable;
+  const { data, specs } = await tf.io.encodeWeights(named);
+  return { data, specs, transforms };
+}
+
+const rungOf = (family: string, size: number | null, scale: number, m: { mae: number; mre: number; miss: number }): SavedRung => {
+  const keep = (x: number) => (Number.isFinite(x) ? x : null);
+  return { family, size, scale, mae: keep(m.mae), mre: keep(m.mre), miss: keep(m.miss) };
+};
+
+/** The JSON that goes beside the shard `shardName`. */
+export function savedNetworkJson(spec: ExperimentSpec, run: RunResult, weights: TrainedWeights, engineVersion: string, shardName: string): SavedNetwork {
+  return {
+    format: NETWORK_FORMAT,
+    version: 1,
+    generatedBy: `farfield ${engineVersion}`,
+    engineVersion,
+    spec,
+    specHash: specHash(spec),
+    arm: run.arm,
+    armIndex: run.armIndex,
+    seed: run.seed,
+    seedIndex: run.seedIndex,
+    runIndex: run.index,
+    transforms: weights.transforms,
+    recorded: {
+      keptStep: run.keptStep,
+      inDistribution: run.inDistribution ? rungOf(spec.train.family, null, 1, run.inDistribution) : null,
+      ladder: run.ladder.map((r) => rungOf(r.family, r.size, r.scale, r.metrics)),
+    },
+    weightsManifest: [{ paths: [shardName], weights: weights.specs }],
+  };
+}
+
+/** A file-system-safe stem per run: "run3-max-seed7". */
+export function networkFileStem(run: Pick<RunResult, 'index' | 'arm' | 'seed'>): string {
+  const arm = run.arm.replace(/[^A-Za-z0-9_.=+-]+/g, '_').replace(/^[._]+/, '').slice(0, 40) || 'arm';
+  return `run${run.index}-${arm}-seed${run.seed}`;
+}
+
+export class NetworkFileError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'NetworkFileError';
+  }
+}
+
+const finiteOrNull = z.number().nullable();
+const savedRung = z.object({ family: z.string().max(64), size: z.number().nullable(), scale: z.number(), mae: finiteOrNull, mre: finiteOrNull, miss: finiteOrNull });
+const stats = z.array(z.object({ mean: z.number(), std: z.number().positive() })).max(64);
+const MAX_PARAMETERS = 16_000_000;
+const weightEntry = z.object({
+  name: z.string().min(1).max(80),
+  shape: z.array(z.number().int().min(0).max(MAX_PARAMETERS)).max(4),
+  dtype: z.literal('float32'),
+});
+const fileSchema = z.object({
+  format: z.literal(NETWORK_FORMAT),
+  version: z.literal(1),
+  generatedBy: z.string().max(80),
+  engineVersion: z.string().max(40),
+  spec: z.unknown(),
+  specHash: z.string().max(64),
+  arm: z.string().max(80),
+  armIndex: z.number().int().min(0),
+  seed: z.number().int(),
+  seedIndex: z.number().int().min(0),
+  runIndex: z.number().int().min(0),
+  transforms: z.object({ node: z.array(z.enum(TRANSFORMS)).max(64), edge: z.array(z.enum(TRANSFORMS)).max(64), nodeStats: stats, edgeStats: stats }),
+  recorded: z.object({ keptStep: z.number().int().min(0), inDistribution: savedRung.nullable(), ladder: z.array(savedRung).max(256) }),
+  weightsManifest: z
+    .array(z.object({ paths: z.array(z.string().min(1).max(200)).length(1), weights: z.array(weightEntry).min(1).max(256) }))
+    .length(1),
+});
+
+/** Check the JSON half of a saved network; every refusal names the field and what is allowed. */
+export function readSavedNetwork(raw: unknown, origin: string): SavedNetwork {
+  const parsed = fileSchema.safeParse(raw);
+  if (!parsed.success) {
+    const problems = parsed.error.issues.slice(0, 6).map((issue) => describeIssue(issue, raw));
+    throw new NetworkFileError(`${origin}: ${problems.join('; ')}`);
+  }
+  let spec: ExperimentSpec;
+  try {
+    spec = validateUntrusted(parsed.data.spec);
+  } catch (error) {
+    if (error instanceof SpecError) throw new NetworkFileError(`${origin}: spec.${error.problems.join('; spec.')}`);
+    throw error;
+  }
+  const file = { ...parsed.data, spec } as SavedNetwork;
+  if (file.armIndex >= spec.arms.length || spec.arms[file.armIndex]!.name !== file.arm) {
+    throw new NetworkFileError(`${origin}: arm: got "${file.arm}" (armIndex ${file.armIndex}), allowed one of the spec's arms (${spec.arms.map((a) => a.name).join(', ')})`);
+  }
+  return file;
+}
+
+/** Bytes the shard must hold: 4 per float32 value, in manifest order. */
+export function shardBytes(file: SavedNetwork): number {
+  return file.weightsManifest[0]!.weights.reduce((sum, w) => sum + 4 * w.shape.reduce((a, b) => a * b, 1), 0);
+}
+
+/**
+ * Rebuild the arm's network and load the saved weights into it. Every
+ * parameter the architecture declares must be in the file with its shape, and
+ * nothing else, so a shard from another arm or spec is refused rather than
+ * half-loaded. The caller disposes the network.
+ */
+export function loadSavedNetwork(file: SavedNetwork, data: ArrayBuffer, origin: string): MessagePassingNetwork {
+  const entries = file.weightsManifest[0]!.weights;
+  const expected = shardBytes(file);
+  if (data.byteLength !== expected) {
+    throw new NetworkFileError(`${origin}: the shard ${file.weightsManifest[0]!.paths[0]} holds ${data.byteLength} bytes, the manifest describes ${expected}`);
+  }
+  const task = getTask(file.spec.task);
+  const network = new MessagePassingNetwork(armModel(file.spec, file.armIndex), task.nodeFeatureNames.length, task.edgeFeatureNames.length, seedRoot(file.seed));
+  const decoded = tf.io.decodeWeights(data, entries);
+  try {
+    const names = new Set(Object.keys(decoded));
+    for (const [name, variable] of network.params.vars) {
+      const tensor = decoded[name];
+      if (!tensor) throw new NetworkFileError(`${origin}: weightsManifest: no weight "${name}", which arm ${file.arm} of this spec needs`);
+      if (tensor.shape.join('x') !== variable.shape.join('x')) {
+        throw new NetworkFileError(`${origin}: weightsManifest: "${name}" has shape [${tensor.shape.join(', ')}], arm ${file.arm} needs [${variable.shape.join(', ')}]`);
+      }
+      variable.assign(tensor);
+      names.delete(name);
+    }
+    if (names.size) throw new NetworkFileError(`${origin}: weightsManifest: weights this arm does not have: ${[...names].join(', ')}`);
+  } catch (error) {
+    network.dispose();
+    throw error;
+  } finally {
+    tf.dispose(Object.values(decoded));
+  }
+  return network;
+}

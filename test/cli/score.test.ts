@@ -1,0 +1,102 @@
+/**
+ * Saved networks: `run --keep-networks` writes each trained network in
+ * TensorFlow.js's weights format, and `score` rescores it without retraining,
+ * reproducing the per-rung errors its run recorded in results.json to the last
+ * bit; a changed shard or manifest is caught.
+ */
+import { describe, expect, it } from 'vitest';
+import { copyFileSync, mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import * as tf from '@tensorflow/tfjs-core';
+import '@tensorflow/tfjs-backend-cpu';
+import { farfield, tiny } from './spawn.ts';
+
+interface Metrics {
+  mae: number;
+  mre: number;
+  miss: number;
+}
+interface Results {
+  runs: Array<{ index: number; arm: string; seed: number; inDistribution: Metrics; ladder: Array<{ family: string; size: number; scale: number; metrics: Metrics }> }>;
+}
+interface Scored {
+  reproduces: boolean | null;
+  ownLadder: boolean;
+  sets: Array<{ family: string; size: number | null; scale: number; metrics: Metrics; exact?: boolean }>;
+}
+interface Manifest {
+  format: string;
+  arm: string;
+  seed: number;
+  engineVersion: string;
+  spec: { question: string };
+  weightsManifest: Array<{ paths: string[]; weights: Array<{ name: string; shape: number[]; dtype: string }> }>;
+}
+
+describe('saved networks: run --keep-networks, then score', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'ff-score-'));
+  const nets = join(dir, 'nets');
+  const ran = farfield('run', tiny, '--json', '--quiet', '--workers', '2', '--keep-networks', nets);
+  const results = JSON.parse(ran.stdout) as Results;
+  const files = ran.code === 0 ? readdirSync(nets).sort() : [];
+
+  it('writes a JSON manifest and a binary shard per run, in TensorFlow.js weights format', async () => {
+    expect(ran.code, ran.stderr).toBe(0);
+    expect(files).toEqual(['run0-max-seed3', 'run1-sum-seed3', 'run2-max-seed4', 'run3-sum-seed4'].flatMap((s) => [`${s}.bin`, `${s}.json`]));
+    const manifest = JSON.parse(readFileSync(join(nets, 'run0-max-seed3.json'), 'utf8')) as Manifest;
+    expect(manifest).toMatchObject({ format: 'farfield-network', arm: 'max', seed: 3, engineVersion: expect.stringMatching(/^\d+\.\d+\.\d+$/) });
+    expect(manifest.spec.question).toMatch(/Fixture/);
+    const group = manifest.weightsManifest[0]!;
+    expect(group.paths).toEqual(['run0-max-seed3.bin']);
+    expect(group.weights.map((w) => w.name)).toContain('encode.w');
+    // Any tfjs reader can decode the shard with the manifest alone.
+    const shard = readFileSync(join(nets, group.paths[0]!));
+    const decoded = tf.io.decodeWeights(shard.buffer.slice(shard.byteOffset, shard.byteOffset + shard.byteLength), group.weights as tf.io.WeightsManifestEntry[]);
+    expect(Object.keys(decoded)).toEqual(group.weights.map((w) => w.name));
+    expect(decoded['encode.w']!.shape).toEqual(group.weights[0]!.shape);
+    tf.dispose(Object.values(decoded));
+  });
+
+  it('scores a saved network on its own ladder and reproduces its run’s per-rung errors exactly', () => {
+    for (const stem of ['run0-max-seed3', 'run3-sum-seed4']) {
+      const r = farfield('score', join(nets, `${stem}.json`), '--json');
+      expect(r.code, r.stderr).toBe(0);
+      const scored = JSON.parse(r.stdout) as Scored;
+      expect(scored).toMatchObject({ ownLadder: true, reproduces: true });
+      const run = results.runs.find((x) => stem === `run${x.index}-${x.arm}-seed${x.seed}`)!;
+      // Compared with results.json itself, not only the copy in the network file.
+      const [inDistribution, ...ladder] = scored.sets;
+      expect(inDistribution!.metrics).toMatchObject(run.inDistribution);
+      expect(ladder.map((s) => [s.family, s.size, s.scale, s.metrics.mae, s.metrics.mre, s.metrics.miss])).toEqual(
+        run.ladder.map((l) => [l.family, l.size, l.scale, l.metrics.mae, l.metrics.mre, l.metrics.miss]),
+      );
+    }
+  });
+
+  it('catches a changed shard (exit 1) and a manifest that does not fit the arm', () => {
+    const stem = 'run1-sum-seed3';
+    const changed = mkdtempSync(join(dir, 'changed-'));
+    copyFileSync(join(nets, `${stem}.json`), join(changed, `${stem}.json`));
+    const shard = readFileSync(join(nets, `${stem}.bin`));
+    const values = new Float32Array(shard.buffer.slice(shard.byteOffset, shard.byteOffset + shard.byteLength));
+    values[0] = values[0]! + 0.25;
+    writeFileSync(join(changed, `${stem}.bin`), new Uint8Array(values.buffer));
+    const r = farfield('score', join(changed, `${stem}.json`));
+    expect(r.code).toBe(1);
+    expect(r.stdout).toMatch(/NO/);
+    expect(r.stderr).toMatch(/differ from the errors the run recorded/);
+
+    const manifest = JSON.parse(readFileSync(join(nets, `${stem}.json`), 'utf8')) as Manifest;
+    manifest.weightsManifest[0]!.paths = ['../../etc/passwd'];
+    const outside = join(dir, 'outside.json');
+    writeFileSync(outside, JSON.stringify(manifest));
+    const escaped = farfield('score', outside);
+    expect(escaped.code).toBe(1);
+    expect(escaped.stderr).toMatch(/weightsManifest\[0\]\.paths\[0\]: got "\.\.\/\.\.\/etc\/passwd", allowed a file name beside the JSON/);
+
+    const graphs = farfield('score', join(nets, `${stem}.json`), '--graphs', 'x.txt');
+    expect(graphs.code).toBe(2);
+    expect(graphs.stderr).toMatch(/--graphs: not yet supported/);
+  });
+});
