@@ -4,6 +4,9 @@
  */
 import type { SpecEdit } from './spec-draft.ts';
 
+/** How results leave the sheet: the results document, a flat table, or the standalone report. */
+export type ResultsFormat = 'json' | 'csv' | 'html';
+
 export interface SheetEventDetails {
   'ff-edit': SpecEdit;
   'ff-preset': { id: string };
@@ -15,7 +18,7 @@ export interface SheetEventDetails {
   'ff-forget': null;
   'ff-workers': { count: number };
   'ff-copy-link': null;
-  'ff-export-results': { format: 'json' | 'csv' };
+  'ff-export-results': { format: ResultsFormat };
   'ff-export-figure': { name: string; format: 'svg' | 'png'; svg: SVGSVGElement };
   'ff-log-scale': { on: boolean };
 }
@@ -34,7 +37,7 @@ declare global {
     'ff-forget': CustomEvent<null>;
     'ff-workers': CustomEvent<{ count: number }>;
     'ff-copy-link': CustomEvent<null>;
-    'ff-export-results': CustomEvent<{ format: 'json' | 'csv' }>;
+    'ff-export-results': CustomEvent<{ format: ResultsFormat }>;
     'ff-export-figure': CustomEvent<{ name: string; format: 'svg' | 'png'; svg: SVGSVGElement }>;
     'ff-log-scale': CustomEvent<{ on: boolean }>;
   }

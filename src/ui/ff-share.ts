@@ -155,6 +155,15 @@ export class FfShare extends LitElement {
         <div class="row exports">
           <button type="button" data-action="export-json" ?disabled=${!this.hasResults} @click=${() => emit(this, 'ff-export-results', { format: 'json' })}>Results JSON</button>
           <button type="button" data-action="export-csv" ?disabled=${!this.hasResults} @click=${() => emit(this, 'ff-export-results', { format: 'csv' })}>Results CSV</button>
+          <button
+            type="button"
+            data-action="export-report"
+            title="One HTML file with the question, arms, setup, every figure, the verdicts and the share link; opens offline and prints to A4"
+            ?disabled=${!this.hasResults}
+            @click=${() => emit(this, 'ff-export-results', { format: 'html' })}
+          >
+            Report (HTML)
+          </button>
         </div>
       </div>
     </div>`;

@@ -13,6 +13,7 @@ import { progressView } from './progress-view.ts';
 import { armColor } from './palette.ts';
 import { LIMITS } from '../experiment/limits.ts';
 import { controls, sectionHead, tokens } from './styles.ts';
+import type { ResultsFormat } from './events.ts';
 import './ff-masthead.ts';
 import './ff-notice.ts';
 import './ff-question.ts';
@@ -260,7 +261,7 @@ export class FfSheet extends LitElement {
           ?hasResults=${Boolean(m.doc)}
           ?edited=${m.edited}
           @ff-copy-link=${() => void c.copyShareLink()}
-          @ff-export-results=${(e: CustomEvent<{ format: 'json' | 'csv' }>) => (e.detail.format === 'json' ? c.exportJson() : c.exportCsv())}
+          @ff-export-results=${(e: CustomEvent<{ format: ResultsFormat }>) => void c.exportResults(e.detail.format)}
         ></ff-share>
       </section>
       <footer>

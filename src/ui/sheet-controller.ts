@@ -20,6 +20,7 @@ import { buildEvidence, type EvidenceView } from './evidence.ts';
 import { download, resultsCsv, resultsJson, svgToPng, svgText } from './export.ts';
 import { wasmPaths } from './wasm-paths.ts';
 import { LOAD_FAULT_WORKER_NAME } from '../../workers/protocol.ts';
+import type { ResultsFormat } from './events.ts';
 
 export type SheetSource =
   | { kind: 'preset'; id: string; file: string }
@@ -440,6 +441,21 @@ export class SheetController implements ReactiveController {
     } catch {
       this.set({ share: { ...this.model.share, status: 'The clipboard is not available here: select the link below and copy it.' } });
     }
+  }
+
+  async exportResults(format: ResultsFormat): Promise<void> {
+    if (format === 'json') this.exportJson();
+    else if (format === 'csv') this.exportCsv();
+    else await this.exportReport();
+  }
+
+  /** The standalone report (src/report/), loaded on first use so the sheet's start stays light. */
+  async exportReport(): Promise<void> {
+    const doc = this.model.doc;
+    if (!doc) return;
+    const { buildReport } = await import('../report/report.ts');
+    const html = await buildReport(doc, { document, linkBase: pageBase() });
+    download(`farfield-${doc.specHash}-report.html`, html, 'text/html');
   }
 
   exportJson(): void {
