@@ -37,7 +37,7 @@ function adjacency(topology: Topology, object: string): Adjacency {
       if (j > i) edges.push([i, j, Math.max(1, Math.round(geoDistance(centroids[i]!, centroids[j]!) * EARTH_KM))]);
     }
   });
-  return { ids: geometries.map((g) => String(g.id)), names: geometries.map((g) => g.properties?.name ?? ''), edges };
+  return { ids: geometries.map((g) => String(g.id)), names: geometries.map((g) => (g.properties as { name?: string } | undefined)?.name ?? ''), edges };
 }
 
 /** State borders as a CSV edge list: source and target are state names, weight in km. */

@@ -16,11 +16,14 @@ const HELP = `farfield — does this message-passing architecture keep working o
 Commands:
   run <preset.json | link> [--seeds N] [--workers K] [--out FILE] [--json] [--shard i/N] [--resume] [--backend wasm|cpu] [--quiet] [--keep-networks DIR]
       train every arm on every seed, score on the size ladder, print the table and verdicts
+      --graphs a.gr,b.csv  add graph files as rungs (or supply the files a shared link names)
       (--keep-networks: save each trained network as DIR/run<i>-<arm>-seed<s>.json + .bin, TensorFlow.js weights format)
   check <preset.json | link>
       validate; print the normalised spec and its hash
   sample --task ID --family ID --nodes N [--count C] [--seed S] [--scale X] [--weights LO,HI]
       print generated graphs with their exact targets as JSON
+  sample --task ID --graphs FILE [--source ID] [--weight COLUMN] [--directed]
+      print a graph file's graph with its exact targets, in the same JSON
   probe <preset.json | link> [--json] [--seeds N] [--arms a,b]
       train each arm on the first seed (or N), print the algebraic audit, learned-vs-true probes and the alignment trace
 
@@ -69,7 +72,7 @@ export async function main(argv: string[]): Promise<number> {
       process.stderr.write(`farfield ${name}: ${error.message}\n`);
       return 2;
     }
-    if (error instanceof SpecError || (error instanceof Error && /^(LinkError|PresetError|SpecError)$/.test(error.name))) {
+    if (error instanceof SpecError || (error instanceof Error && /^(LinkError|PresetError|SpecError|GraphFileError)$/.test(error.name))) {
       process.stderr.write(`farfield ${name}: ${error.message}\n`);
       return 1;
     }

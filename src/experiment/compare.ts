@@ -16,6 +16,7 @@ import { mean, quantileSorted, summarize, wilcoxonSignedRank, type Summary } fro
 import { holmAdjust } from './multiplicity.ts';
 import { verdict, type Adjustment, type Verdict } from './verdict.ts';
 import { Rng } from '../util/rng.ts';
+import { fileRungFamily } from '../graphs/files/types.ts';
 import type { ConstantBaselines } from '../train/baselines.ts';
 
 export interface ArmRung {
@@ -213,104 +214,110 @@ export function compareRuns(spec: ExperimentSpec, runs: readonly RunResult[]): C
     pairs: Array<{ i: number; j: number; a: number[]; b: number[]; pRaw: number }>;
   }
   const pending: Pending[] = [];
-  for (const size of spec.test.sizes) {
-    for (const scale of spec.test.weightScales) {
-      const key = rungKey(family, size, scale);
-      // outcome[arm][seed]
-      const table = spec.arms.map((_, a) => seeds.map((seed) => outcomeAt(runOf(a, seed), key, metric)));
-      const rungOf = (run: RunResult | undefined): RungResult | undefined =>
-        run?.status === 'ok' ? run.ladder.find((l) => rungKey(l.family, l.size, l.scale) === key) : undefined;
-      const sampleRung = runs.map(rungOf).find((r) => r !== undefined);
-      // Baselines depend on the seed's graphs only: one per seed, from any arm's run of it.
-      const baselineBySeed = new Map<number, ConstantBaselines>();
-      for (const seed of seeds) {
-        const found = spec.arms.map((_, a) => rungOf(runOf(a, seed))?.baseline).find((x) => x !== undefined);
-        if (found) baselineBySeed.set(seed, found);
-      }
-      const seedBaselines = [...baselineBySeed.values()];
-      const baseline: RungBaseline = {
-        best: meanFinite(seedBaselines.map((b) => b.best[metric])),
-        train: meanFinite(seedBaselines.map((b) => b.train[metric])),
-        bestRelative: meanFinite(seedBaselines.map((b) => b.best.mre)),
-        trainRelative: meanFinite(seedBaselines.map((b) => b.train.mre)),
-      };
-      const arms: ArmRung[] = spec.arms.map((arm, a) => {
-        const values: number[] = [];
-        const valueSeeds: number[] = [];
-        const reasons: string[] = [];
-        const relatives: number[] = [];
-        let nonFinite = 0;
-        let missing = 0;
-        let constantWins = 0;
-        table[a]!.forEach((v, s) => {
-          const seed = seeds[s]!;
-          const run = runOf(a, seed);
-          if (v === null) {
-            missing++;
-            reasons.push(run ? `seed ${seed}: ${run.status}${run.reason ? ` (${run.reason})` : ''}` : `seed ${seed}: not run yet`);
-            return;
-          }
-          if (!Number.isFinite(v)) {
-            nonFinite++;
-            reasons.push(`seed ${seed}: ${run!.status === 'ok' ? 'non-finite error' : run!.status}${run!.reason ? ` (${run!.reason})` : ''}; ranked as the worst outcome`);
-            return;
-          }
-          values.push(v);
-          valueSeeds.push(seed);
-          const c = baselineBySeed.get(seed)?.best[metric];
-          if (c !== undefined && v < c) constantWins++;
-          const rel = rungOf(run)?.metrics.mre;
-          if (typeof rel === 'number') relatives.push(rel);
-        });
-        const summary = summarize(values, statsRng.fork(`arm:${a}:${key}`));
-        const inMean = inDistributionMean[a]!;
-        return {
-          arm: arm.name,
-          armIndex: a,
-          summary,
-          seeds: valueSeeds,
-          excluded: missing,
-          excludedReasons: reasons,
-          nonFinite,
-          gap: inMean > 0 ? summary.mean / inMean : NaN,
-          relative: nonFinite > 0 ? Infinity : meanFinite(relatives),
-          beatsConstant: nonFinite === 0 && values.length > 0 && Number.isFinite(baseline.best) && summary.mean < baseline.best,
-          constantWins,
-        };
-      });
-      const tested = !primary || (primary.size === size && primary.scale === scale);
-      const pairs = pairIndices.map(([i, j]) => {
-        const a: number[] = [];
-        const b: number[] = [];
-        seeds.forEach((_, s) => {
-          const va = table[i]![s];
-          const vb = table[j]![s];
-          if (va !== null && va !== undefined && vb !== null && vb !== undefined) {
-            a.push(va);
-            b.push(vb);
-          }
-        });
-        return { i, j, a, b, pRaw: wilcoxonSignedRank(a, b).pTwoSided };
-      });
-      pending.push({
-        rung: {
-          family,
-          size,
-          scale,
-          depthMean: sampleRung?.depthMean ?? NaN,
-          meanDegree: sampleRung?.meanDegree ?? NaN,
-          inTrainingRange: family === spec.train.family && scale === 1 && size >= spec.train.sizes[0] && size <= spec.train.sizes[1],
-          tested,
-          baseline,
-          noArmBeatsConstant: arms.every((x) => !x.beatsConstant) && arms.some((x) => x.summary.n > 0 || x.nonFinite > 0),
-          arms,
-          ranking: [...arms]
-            .sort((x, y) => sortKey(x) - sortKey(y))
-            .map((x) => x.arm),
-        },
-        pairs,
-      });
+  // Generated rungs (size × scale), then one per graph file: its size is the file's node count, read off any run that scored it.
+  const ladder: Array<{ family: string; size: number; scale: number; file: boolean }> = [];
+  for (const size of spec.test.sizes) for (const scale of spec.test.weightScales) ladder.push({ family, size, scale, file: false });
+  for (const file of spec.test.files ?? []) {
+    const fileFamily = fileRungFamily(file);
+    const size = runs.flatMap((r) => r.ladder).find((l) => l.family === fileFamily)?.size ?? 0;
+    ladder.push({ family: fileFamily, size, scale: 1, file: true });
+  }
+  for (const { family, size, scale, file } of ladder) {
+    const key = rungKey(family, size, scale);
+    // outcome[arm][seed]
+    const table = spec.arms.map((_, a) => seeds.map((seed) => outcomeAt(runOf(a, seed), key, metric)));
+    const rungOf = (run: RunResult | undefined): RungResult | undefined =>
+      run?.status === 'ok' ? run.ladder.find((l) => rungKey(l.family, l.size, l.scale) === key) : undefined;
+    const sampleRung = runs.map(rungOf).find((r) => r !== undefined);
+    // Baselines depend on the seed's graphs only: one per seed, from any arm's run of it.
+    const baselineBySeed = new Map<number, ConstantBaselines>();
+    for (const seed of seeds) {
+      const found = spec.arms.map((_, a) => rungOf(runOf(a, seed))?.baseline).find((x) => x !== undefined);
+      if (found) baselineBySeed.set(seed, found);
     }
+    const seedBaselines = [...baselineBySeed.values()];
+    const baseline: RungBaseline = {
+      best: meanFinite(seedBaselines.map((b) => b.best[metric])),
+      train: meanFinite(seedBaselines.map((b) => b.train[metric])),
+      bestRelative: meanFinite(seedBaselines.map((b) => b.best.mre)),
+      trainRelative: meanFinite(seedBaselines.map((b) => b.train.mre)),
+    };
+    const arms: ArmRung[] = spec.arms.map((arm, a) => {
+      const values: number[] = [];
+      const valueSeeds: number[] = [];
+      const reasons: string[] = [];
+      const relatives: number[] = [];
+      let nonFinite = 0;
+      let missing = 0;
+      let constantWins = 0;
+      table[a]!.forEach((v, s) => {
+        const seed = seeds[s]!;
+        const run = runOf(a, seed);
+        if (v === null) {
+          missing++;
+          reasons.push(run ? `seed ${seed}: ${run.status}${run.reason ? ` (${run.reason})` : ''}` : `seed ${seed}: not run yet`);
+          return;
+        }
+        if (!Number.isFinite(v)) {
+          nonFinite++;
+          reasons.push(`seed ${seed}: ${run!.status === 'ok' ? 'non-finite error' : run!.status}${run!.reason ? ` (${run!.reason})` : ''}; ranked as the worst outcome`);
+          return;
+        }
+        values.push(v);
+        valueSeeds.push(seed);
+        const c = baselineBySeed.get(seed)?.best[metric];
+        if (c !== undefined && v < c) constantWins++;
+        const rel = rungOf(run)?.metrics.mre;
+        if (typeof rel === 'number') relatives.push(rel);
+      });
+      const summary = summarize(values, statsRng.fork(`arm:${a}:${key}`));
+      const inMean = inDistributionMean[a]!;
+      return {
+        arm: arm.name,
+        armIndex: a,
+        summary,
+        seeds: valueSeeds,
+        excluded: missing,
+        excludedReasons: reasons,
+        nonFinite,
+        gap: inMean > 0 ? summary.mean / inMean : NaN,
+        relative: nonFinite > 0 ? Infinity : meanFinite(relatives),
+        beatsConstant: nonFinite === 0 && values.length > 0 && Number.isFinite(baseline.best) && summary.mean < baseline.best,
+        constantWins,
+      };
+    });
+    const tested = !primary || (!file && primary.size === size && primary.scale === scale);
+    const pairs = pairIndices.map(([i, j]) => {
+      const a: number[] = [];
+      const b: number[] = [];
+      seeds.forEach((_, s) => {
+        const va = table[i]![s];
+        const vb = table[j]![s];
+        if (va !== null && va !== undefined && vb !== null && vb !== undefined) {
+          a.push(va);
+          b.push(vb);
+        }
+      });
+      return { i, j, a, b, pRaw: wilcoxonSignedRank(a, b).pTwoSided };
+    });
+    pending.push({
+      rung: {
+        family,
+        size,
+        scale,
+        depthMean: sampleRung?.depthMean ?? NaN,
+        meanDegree: sampleRung?.meanDegree ?? NaN,
+        inTrainingRange: family === spec.train.family && scale === 1 && size >= spec.train.sizes[0] && size <= spec.train.sizes[1],
+        tested,
+        baseline,
+        noArmBeatsConstant: arms.every((x) => !x.beatsConstant) && arms.some((x) => x.summary.n > 0 || x.nonFinite > 0),
+        arms,
+        ranking: [...arms]
+          .sort((x, y) => sortKey(x) - sortKey(y))
+          .map((x) => x.arm),
+      },
+      pairs,
+    });
   }
 
   // Every tested (rung, pair) is one test of the family: Holm keeps the chance of any false

@@ -4,6 +4,7 @@
  * always holds complete pairs, and shards are deterministic slices.
  */
 import type { ExperimentSpec } from './spec.ts';
+import type { GraphFileContent } from './file-rungs.ts';
 
 export interface RunPlan {
   index: number;
@@ -12,6 +13,11 @@ export interface RunPlan {
   seedIndex: number;
   /** The seed value every random draw of this run flows from. */
   seed: number;
+  /**
+   * The content of the spec's graph files (`test.files`), supplied by the host
+   * that read them; absent when the spec names none. Never copied into results.
+   */
+  files?: readonly GraphFileContent[];
 }
 
 export function planRuns(spec: ExperimentSpec): RunPlan[] {

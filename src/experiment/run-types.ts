@@ -6,6 +6,7 @@
 import type { Metrics } from '../train/metrics.ts';
 import type { ConstantBaselines } from '../train/baselines.ts';
 import type { ValidationPoint } from '../train/trainer.ts';
+import type { FileRungInfo } from './file-rungs.ts';
 
 export type RunStatus = 'ok' | 'diverged' | 'failed' | 'cancelled';
 
@@ -24,6 +25,8 @@ export interface RungResult {
   depthMean: number;
   depthMax: number;
   meanDegree: number;
+  /** Graph-file rungs only (family "file:<name>", scale 1): which file, its size and what was counted. */
+  file?: FileRungInfo;
 }
 
 export interface RunResult {

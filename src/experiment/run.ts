@@ -13,6 +13,8 @@ import { columnStats, transformsFor } from '../model/transforms.ts';
 import type { FeatureTransforms } from '../train/batch.ts';
 import { train, type TrainProgress } from '../train/trainer.ts';
 import { evaluateSet } from '../train/evaluate.ts';
+import { evaluateLarge } from '../train/evaluate-large.ts';
+import { fileRung } from './file-rungs.ts';
 import type { TaskInstance } from '../tasks/types.ts';
 import { constantBaselines, countedTargets, optimalConstants } from '../train/baselines.ts';
 import { unmeasuredResult } from './run-record.ts';
@@ -123,6 +125,20 @@ export function executeRun(spec: ExperimentSpec, plan: RunPlan, hooks: RunHooks 
         metrics,
         baseline: constantBaselines(rung.instances, trainConstant),
         ...rungSummary(rung.instances),
+      });
+    }
+    // Graph files: one more rung each, scored in edge chunks (they may be far larger than any generated rung).
+    for (const file of spec.test.files ?? []) {
+      const rung = fileRung(task, file, plan.files);
+      const { metrics } = evaluateLarge(network, rung.instance, transforms);
+      base.ladder.push({
+        family: rung.family,
+        size: rung.instance.nodes,
+        scale: 1,
+        metrics,
+        baseline: constantBaselines([rung.instance], trainConstant),
+        ...rungSummary([rung.instance]),
+        file: rung.info,
       });
     }
     if (hooks.keepNetwork) {

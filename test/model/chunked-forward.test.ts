@@ -25,7 +25,7 @@ beforeAll(async () => {
   await initBackend('wasm');
 });
 
-function model(overrides: Partial<ModelOptions>): ModelOptions {
+function model(overrides: Record<string, unknown>): ModelOptions {
   return modelSchema.parse({ hidden: 8, steps: { rule: 'fixed', count: 5 }, ...overrides });
 }
 
@@ -42,7 +42,7 @@ function network(options: ModelOptions, seed: number): MessagePassingNetwork {
 
 const instance = (family: string, nodes: number, seed: number) => buildInstance('shortest-path', family, nodes, new Rng(seed), { weightRange: [1, 10] }).instance;
 
-const variants: Array<Partial<ModelOptions>> = [
+const variants: Array<{ message: string; update: string }> = [
   { message: 'mlp', update: 'mlp' },
   { message: 'smooth-min-plus', update: 'gated' },
   { message: 'mlp', update: 'aggregate' },

@@ -1,6 +1,7 @@
 import { parse, UsageError, intFlag } from '../args.ts';
 import { sampleGraphs } from '../../tasks/sample.ts';
 import { LIMITS } from '../../experiment/limits.ts';
+import { sampleFile } from '../graph-files.ts';
 
 export async function commandSample(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -11,8 +12,18 @@ export async function commandSample(args: string[]): Promise<number> {
     seed: { type: 'string' },
     scale: { type: 'string' },
     weights: { type: 'string' },
+    graphs: { type: 'string' },
+    source: { type: 'string' },
+    weight: { type: 'string' },
+    directed: { type: 'boolean' },
   });
   if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"`);
+  if (values.graphs !== undefined) {
+    if (!values.task) throw new UsageError('usage: farfield sample --task ID --graphs FILE [--source ID] [--weight COLUMN] [--directed]');
+    const sample = await sampleFile(values.task, values.graphs, { source: values.source, weight: values.weight, directed: values.directed });
+    process.stdout.write(JSON.stringify(sample) + '\n');
+    return 0;
+  }
   if (!values.task || !values.family || !values.nodes) throw new UsageError('usage: farfield sample --task ID --family ID --nodes N [--count C] [--seed S] [--scale X] [--weights LO,HI]');
   const nodes = intFlag('nodes', values.nodes, LIMITS.trainNodes.min, LIMITS.testNodes.max)!;
   const count = intFlag('count', values.count, 1, 1000) ?? 1;

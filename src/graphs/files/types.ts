@@ -50,3 +50,8 @@ export class GraphFileError extends Error {
     this.name = 'GraphFileError';
   }
 }
+
+/** A graph-file rung's family label in results: "file:" and the file's base name. */
+export function fileRungFamily(file: { name: string }): string {
+  return `file:${file.name.replace(/^.*[\\/]/, '')}`;
+}
