@@ -1,0 +1,93 @@
+/**
+ * The standalone report in real Chromium, as a reader gets it: a file opened
+ * from disk with the network cut off. Every request that is not the file
+ * itself is aborted and recorded, and none may be attempted; every figure must
+ * be drawn with a real size, the verdict table present, and the page must fit
+ * an A4 sheet when printed.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { chromium, type Browser } from 'playwright-core';
+import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { CHROMIUM, CHROMIUM_ARGS } from '../../bench/chromium.ts';
+import { farfield, tiny } from '../cli/spawn.ts';
+
+/** A4's width at 96 CSS pixels per inch, less the report's 12 mm print margins. */
+const A4_PRINT_WIDTH_PX = Math.floor(((210 - 2 * 12) / 25.4) * 96);
+
+describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline', () => {
+  let browser: Browser;
+  let reportUrl: string;
+
+  beforeAll(async () => {
+    const dir = mkdtempSync(join(tmpdir(), 'ff-report-browser-'));
+    const results = join(dir, 'results.json');
+    const report = join(dir, 'report.html');
+    const ran = farfield('run', tiny, '--quiet', '--workers', '2', '--out', results);
+    if (ran.code !== 0) throw new Error(`run failed: ${ran.stderr}`);
+    const made = farfield('report', results, '--out', report);
+    if (made.code !== 0) throw new Error(`report failed: ${made.stderr}`);
+    reportUrl = pathToFileURL(report).href;
+    browser = await chromium.launch({ executablePath: CHROMIUM, args: CHROMIUM_ARGS, headless: true });
+  }, 90_000);
+
+  afterAll(async () => {
+    await browser?.close();
+  });
+
+  it('opens from a file URL without a single network request, with every figure and the verdict table', async () => {
+    const context = await browser.newContext({ viewport: { width: 1100, height: 900 }, offline: true });
+    const attempted: string[] = [];
+    const problems: string[] = [];
+    await context.route('**/*', (route) => {
+      const url = route.request().url();
+      if (url.startsWith('file:')) return route.continue();
+      attempted.push(url);
+      return route.abort();
+    });
+    const page = await context.newPage();
+    page.on('request', (request) => {
+      if (!request.url().startsWith('file:')) attempted.push(request.url());
+    });
+    page.on('pageerror', (error) => problems.push(error.message));
+    page.on('console', (message) => {
+      if (message.type() === 'error') problems.push(message.text());
+    });
+    await page.goto(reportUrl, { waitUntil: 'load' });
+
+    const figures = await page.$$eval('figure[data-figure]', (nodes) =>
+      nodes.map((node) => {
+        const svg = node.querySelector('svg');
+        const box = svg?.getBoundingClientRect();
+        return { name: node.getAttribute('data-figure'), width: box?.width ?? 0, height: box?.height ?? 0, marks: svg?.querySelectorAll('circle, path, line, rect').length ?? 0 };
+      }),
+    );
+    expect(figures.map((f) => f.name)).toEqual(['curves', 'differences', 'seeds']);
+    for (const f of figures) {
+      expect(f.width, f.name!).toBeGreaterThan(300);
+      expect(f.height, f.name!).toBeGreaterThan(150);
+      expect(f.marks, f.name!).toBeGreaterThan(5);
+    }
+    expect(await page.locator('table[data-verdict-table] tbody tr').count()).toBe(2);
+    expect(await page.locator('[data-fingerprint]').textContent()).toMatch(/^[0-9a-f]{12}$/);
+    expect(await page.locator('h1[data-question]').textContent()).toMatch(/Fixture/);
+    expect(attempted).toEqual([]);
+    expect(problems).toEqual([]);
+    await context.close();
+  }, 60_000);
+
+  it('fits an A4 page when printed', async () => {
+    const context = await browser.newContext({ viewport: { width: A4_PRINT_WIDTH_PX, height: 1000 }, offline: true });
+    const page = await context.newPage();
+    await page.goto(reportUrl, { waitUntil: 'load' });
+    await page.emulateMedia({ media: 'print' });
+    const widths = await page.evaluate(() => ({ page: document.documentElement.clientWidth, content: document.documentElement.scrollWidth }));
+    expect(widths.content).toBeLessThanOrEqual(widths.page);
+    const pdf = await page.pdf({ format: 'A4', printBackground: true });
+    expect(pdf.subarray(0, 5).toString()).toBe('%PDF-');
+    expect(readFileSync(new URL(reportUrl)).toString()).toContain('size: A4');
+    await context.close();
+  }, 60_000);
+});
