@@ -14,7 +14,7 @@ export function recurrenceWeightProblems(
   const [lo, hi] = sizes.train.weightRange;
   const problems: string[] = [];
   if (!(lo > 0 && hi <= 1)) {
-    problems.push(`train.weightRange: got [${lo}, ${hi}], allowed within (0, 1] for semiring "max-times" (the factors are reliabilities)`);
+    return [`train.weightRange: got [${lo}, ${hi}], allowed within (0, 1] for semiring "max-times" (the factors are reliabilities)`];
   }
   sizes.test.weightScales.forEach((scale, i) => {
     // Drawn factors lie below hi, and w·c ≤ hi·c in floating point too, so this bound is the one that matters.
