@@ -18,24 +18,31 @@ interface Located {
   lineNumber?: number;
 }
 
+/**
+ * xmldom 0.8 is lenient and, on a broken document, reports a cascade of
+ * "Hierarchy request" errors before the real one; we report the first other
+ * error, else the first warning (a well-formed document raises none), else the
+ * first of the cascade.
+ */
 function parseXml(name: string, text: string): Document {
-  let first: { message: string; line: number | null } | null = null;
-  const note = (message: string) => {
-    if (first) return;
+  const problems: Array<{ kind: 'warning' | 'error'; message: string; line: number | null }> = [];
+  const note = (kind: 'warning' | 'error') => (message: string) => {
     const m = /@#\[line:(\d+),col:\d+\]/.exec(message);
     const clean = message.replace(/^\[xmldom \w+\]\s*/, '').replace(/\s*@#\[line:\d+,col:\d+\]\s*$/, '').trim();
-    first = { message: clean, line: m ? Number(m[1]) : null };
+    problems.push({ kind, message: clean, line: m ? Number(m[1]) : null });
   };
-  const parser = new DOMParser({ locator: {}, errorHandler: { warning: () => undefined, error: note, fatalError: note } });
-  let doc: Document;
+  const parser = new DOMParser({ locator: {}, errorHandler: { warning: note('warning'), error: note('error'), fatalError: note('error') } });
+  let doc: Document | null = null;
   try {
     doc = parser.parseFromString(text, 'application/xml');
   } catch (error) {
-    if (!first) note(error instanceof Error ? error.message : String(error));
+    note('error')(error instanceof Error ? error.message : String(error));
   }
-  const problem = first as { message: string; line: number | null } | null;
-  if (problem) throw new GraphFileError(name, problem.line, `not well-formed XML: ${problem.message}`);
-  return doc!;
+  const cascade = (p: { message: string }) => p.message.includes('Hierarchy request error');
+  const problem =
+    problems.find((p) => p.kind === 'error' && !cascade(p)) ?? problems.find((p) => p.kind === 'warning') ?? problems[0];
+  if (problem || !doc) throw new GraphFileError(name, problem?.line ?? null, `not well-formed XML: ${problem?.message ?? 'no document'}`);
+  return doc;
 }
 
 function elementLines(doc: Document, tag: string): Array<{ line: number; element: Element }> {
