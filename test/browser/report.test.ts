@@ -3,7 +3,8 @@
  * from disk with the network cut off. Every request that is not the file
  * itself is aborted and recorded, and none may be attempted; every figure must
  * be drawn with a real size, the verdict table present, and the page must fit
- * an A4 sheet when printed.
+ * an A4 sheet when printed. The sheet's Report button gives the same kind of
+ * file from a run made in the page (the built site, as users get it).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chromium, type Browser } from 'playwright-core';
@@ -12,7 +13,10 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { CHROMIUM, CHROMIUM_ARGS } from '../../bench/chromium.ts';
-import { farfield, tiny } from '../cli/spawn.ts';
+import { buildSite, serveStatic, type StaticServer } from '../../bench/static-server.ts';
+import { validateSpec } from '../../src/experiment/check.ts';
+import { encodeSpecLink } from '../../src/share/link.ts';
+import { farfield, root, tiny } from '../cli/spawn.ts';
 
 /** A4's width at 96 CSS pixels per inch, less the report's 12 mm print margins. */
 const A4_PRINT_WIDTH_PX = Math.floor(((210 - 2 * 12) / 25.4) * 96);
@@ -20,9 +24,14 @@ const A4_PRINT_WIDTH_PX = Math.floor(((210 - 2 * 12) / 25.4) * 96);
 describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline', () => {
   let browser: Browser;
   let reportUrl: string;
+  let site: Promise<StaticServer>;
+  const dir = mkdtempSync(join(tmpdir(), 'ff-report-browser-'));
 
   beforeAll(async () => {
-    const dir = mkdtempSync(join(tmpdir(), 'ff-report-browser-'));
+    // Its own build folder, so this file never races the sheet tests' build.
+    const siteDir = join(root, 'test-output', 'site-report');
+    site = buildSite(siteDir, 170_000).then(() => serveStatic(siteDir));
+    site.catch(() => undefined);
     const results = join(dir, 'results.json');
     const report = join(dir, 'report.html');
     const ran = farfield('run', tiny, '--quiet', '--workers', '2', '--out', results);
@@ -35,16 +44,18 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
 
   afterAll(async () => {
     await browser?.close();
+    await (await site.catch(() => null))?.close();
   });
 
-  it('opens from a file URL without a single network request, with every figure and the verdict table', async () => {
+  /** Open a report file offline; every request that is not the file is aborted and recorded. */
+  async function openOffline(url: string) {
     const context = await browser.newContext({ viewport: { width: 1100, height: 900 }, offline: true });
     const attempted: string[] = [];
     const problems: string[] = [];
     await context.route('**/*', (route) => {
-      const url = route.request().url();
-      if (url.startsWith('file:')) return route.continue();
-      attempted.push(url);
+      const requested = route.request().url();
+      if (requested.startsWith('file:')) return route.continue();
+      attempted.push(requested);
       return route.abort();
     });
     const page = await context.newPage();
@@ -55,8 +66,7 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
     page.on('console', (message) => {
       if (message.type() === 'error') problems.push(message.text());
     });
-    await page.goto(reportUrl, { waitUntil: 'load' });
-
+    await page.goto(url, { waitUntil: 'load' });
     const figures = await page.$$eval('figure[data-figure]', (nodes) =>
       nodes.map((node) => {
         const svg = node.querySelector('svg');
@@ -64,12 +74,21 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
         return { name: node.getAttribute('data-figure'), width: box?.width ?? 0, height: box?.height ?? 0, marks: svg?.querySelectorAll('circle, path, line, rect').length ?? 0 };
       }),
     );
+    return { context, page, attempted, problems, figures };
+  }
+
+  function expectFigures(figures: Array<{ name: string | null; width: number; height: number; marks: number }>) {
     expect(figures.map((f) => f.name)).toEqual(['curves', 'differences', 'seeds']);
     for (const f of figures) {
       expect(f.width, f.name!).toBeGreaterThan(300);
       expect(f.height, f.name!).toBeGreaterThan(150);
       expect(f.marks, f.name!).toBeGreaterThan(5);
     }
+  }
+
+  it('opens from a file URL without a single network request, with every figure and the verdict table', async () => {
+    const { context, page, attempted, problems, figures } = await openOffline(reportUrl);
+    expectFigures(figures);
     expect(await page.locator('table[data-verdict-table] tbody tr').count()).toBe(2);
     expect(await page.locator('[data-fingerprint]').textContent()).toMatch(/^[0-9a-f]{12}$/);
     expect(await page.locator('h1[data-question]').textContent()).toMatch(/Fixture/);
@@ -90,4 +109,29 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
     expect(readFileSync(new URL(reportUrl)).toString()).toContain('size: A4');
     await context.close();
   }, 60_000);
+
+  it('the sheet\'s Report button downloads the same kind of file from a run in the page', async () => {
+    const served = await site;
+    const spec = validateSpec(JSON.parse(readFileSync(tiny, 'utf8')));
+    const fragment = await encodeSpecLink(spec, { base: '' });
+    const context = await browser.newContext({ viewport: { width: 1360, height: 900 }, acceptDownloads: true });
+    const page = await context.newPage();
+    await page.goto(`${served.url}${fragment}`);
+    await page.locator('button[data-action="run"]').first().click();
+    await page.waitForSelector('ff-sheet[data-state="done"]', { timeout: 120_000 });
+    const [download] = await Promise.all([page.waitForEvent('download'), page.locator('button[data-action="export-report"]').click()]);
+    expect(download.suggestedFilename()).toMatch(/^farfield-[0-9a-f]{16}-report\.html$/);
+    const saved = join(dir, download.suggestedFilename());
+    await download.saveAs(saved);
+    await context.close();
+
+    const offline = await openOffline(pathToFileURL(saved).href);
+    expectFigures(offline.figures);
+    expect(await offline.page.locator('table[data-verdict-table] tbody tr').count()).toBe(2);
+    // The same spec and engine as the CLI's run: the same fingerprint.
+    expect(await offline.page.locator('[data-fingerprint]').textContent()).toBe(JSON.parse(readFileSync(join(dir, 'results.json'), 'utf8')).fingerprint);
+    expect(offline.attempted).toEqual([]);
+    expect(offline.problems).toEqual([]);
+    await offline.context.close();
+  }, 180_000);
 });
