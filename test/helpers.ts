@@ -3,6 +3,8 @@ import { validateSpec } from '../src/experiment/check.ts';
 import { SpecError, modelSchema, type ExperimentSpec, type SpecInput } from '../src/experiment/spec.ts';
 import { MessagePassingNetwork } from '../src/model/network.ts';
 import { Rng } from '../src/util/rng.ts';
+import type Graph from 'graphology';
+import { dijkstra as graphologyDijkstra } from 'graphology-shortest-path';
 
 /** A small, fast spec for tests; override any part. */
 export function tinySpec(overrides: Partial<SpecInput> = {}): ExperimentSpec {
@@ -73,4 +75,20 @@ export function specRefusal(input: unknown): string {
     return (error as Error).message;
   }
   throw new Error('spec was accepted');
+}
+
+/**
+ * Shortest-path distances per node from graphology-shortest-path 2.1's
+ * Dijkstra (`singleSource`): the `weight` attributes summed along each
+ * returned path; Infinity where the source reaches no path.
+ */
+export function graphologyDistances(graph: Graph, source: number): number[] {
+  const paths = graphologyDijkstra.singleSource(graph, String(source));
+  return Array.from({ length: graph.order }, (_, i) => {
+    const p = paths[String(i)];
+    if (!p) return Infinity;
+    let d = 0;
+    for (let k = 1; k < p.length; k++) d += graph.getEdgeAttribute(graph.edge(p[k - 1]!, p[k]!)!, 'weight') as number;
+    return d;
+  });
 }

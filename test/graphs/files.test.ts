@@ -5,25 +5,14 @@
  * graphology-shortest-path, and every refusal naming file, line and range.
  */
 import { describe, expect, it } from 'vitest';
-import { dijkstra as graphologyDijkstra } from 'graphology-shortest-path';
-import type Graph from 'graphology';
+import { graphologyDistances } from '../helpers.ts';
 import { readGraphFile, contentHash, inferFormat } from '../../src/graphs/files/read.ts';
 import { GraphFileError, type FileGraph } from '../../src/graphs/files/types.ts';
 import { GRAPH_FILE_LIMITS } from '../../src/graphs/files/caps.ts';
 import { fileInstance } from '../../src/tasks/file-instance.ts';
 import { getTask } from '../../src/tasks/registry.ts';
 
-/** Distances from graphology-shortest-path 2.1's Dijkstra: the weights summed along each returned path. */
-function referenceDistances(graph: Graph, source: number): number[] {
-  const paths = graphologyDijkstra.singleSource(graph, String(source));
-  return Array.from({ length: graph.order }, (_, i) => {
-    const p = paths[String(i)];
-    if (!p) return Infinity;
-    let d = 0;
-    for (let k = 1; k < p.length; k++) d += graph.getEdgeAttribute(graph.edge(p[k - 1]!, p[k]!)!, 'weight') as number;
-    return d;
-  });
-}
+const referenceDistances = graphologyDistances; // graphology-shortest-path 2.1
 
 function refusal(run: () => unknown): GraphFileError {
   try {
