@@ -6,6 +6,7 @@ import type { AggregatorName } from '../src/experiment/spec.ts';
 import type { BrowserTiming } from './browser.ts';
 import type { LongRunReport } from './long-run.ts';
 import type { PresetTiming } from './presets.ts';
+import type { FusionReport } from './fusion.ts';
 import type { KernelCategory, KernelStat, MatmulStat } from './reference.ts';
 import type { PresetScaling, WorkersReport } from './workers.ts';
 
@@ -90,6 +91,8 @@ export interface BenchDocument {
     topKernels: KernelStat[];
     limit: string;
   };
+  /** The fused process kernels against the path they replace, reference step and the default preset's own step. */
+  fusion: FusionReport | null;
   /** Short fixed runs through the pool (start-up and warm-up weigh heavily). */
   workers: WorkersReport | null;
   /** The target preset's own runs on 1 worker against one per core; null when not measured (--quick, --skip-scaling, one core). */
@@ -109,7 +112,7 @@ export interface BenchDocument {
 }
 
 export interface Target {
-  id: 'wasmOverCpu' | 'workerSpeedup' | 'presetWall' | 'browserOverCli' | 'fractionOfCeiling';
+  id: 'wasmOverCpu' | 'workerSpeedup' | 'presetWall' | 'browserOverCli' | 'fractionOfCeiling' | 'fusedPresetStep' | 'fusedReferenceStep' | 'fusedLaunches';
   description: string;
   value: number | null;
   threshold: number;
@@ -158,6 +161,42 @@ function workerSpeedupTarget(doc: Omit<BenchDocument, 'targets'>, targetPreset: 
   });
 }
 
+function fusionTargets(doc: Omit<BenchDocument, 'targets'>, quickNote: string | undefined): Target[] {
+  const get = (name: string) => doc.fusion?.workloads.find((w) => w.name === name);
+  const preset = get('default-preset');
+  const reference = get('reference');
+  const missing = doc.fusion == null ? 'fusion not measured' : undefined;
+  return [
+    target({
+      id: 'fusedPresetStep',
+      description: "default preset's own training step, fused kernels over the previous path",
+      value: preset?.speedup ?? null,
+      threshold: 2.5,
+      direction: 'atLeast',
+      unit: 'x',
+      note: missing ?? quickNote,
+    }),
+    target({
+      id: 'fusedReferenceStep',
+      description: 'reference training step, fused kernels over the previous path',
+      value: reference?.speedup ?? null,
+      threshold: 1.6,
+      direction: 'atLeast',
+      unit: 'x',
+      note: missing ?? quickNote,
+    }),
+    target({
+      id: 'fusedLaunches',
+      description: 'kernel launches per reference training step, fused',
+      value: reference?.launches.fused ?? null,
+      threshold: 300,
+      direction: 'atMost',
+      unit: '',
+      note: missing ?? (reference ? `previous path: ${Math.round(reference.launches.previous)}` : undefined),
+    }),
+  ];
+}
+
 export function evaluateTargets(doc: Omit<BenchDocument, 'targets'>, targetPreset: string): Target[] {
   const quickNote = doc.quick ? 'quick mode: smaller reference and short windows, not comparable to the target' : undefined;
   const cores = doc.machine.cores;
@@ -194,6 +233,7 @@ export function evaluateTargets(doc: Omit<BenchDocument, 'targets'>, targetPrese
         ? 'browser not run (--quick or --skip-browser)'
         : doc.browser.error ?? (!preset ? 'CLI time of the preset not measured' : doc.browser.fingerprint === preset.fingerprint ? 'same fingerprint as the CLI' : `fingerprint ${doc.browser.fingerprint} differs from the CLI's ${preset.fingerprint}`),
     }),
+    ...fusionTargets(doc, quickNote),
     target({
       id: 'fractionOfCeiling',
       description: 'reference step effective matmul GFLOP/s over the 256³ WASM matmul rate',
@@ -252,6 +292,17 @@ export function renderReport(doc: BenchDocument): string {
   }
   lines.push(`  limit: ${fl.limit}`);
   lines.push('');
+  if (doc.fusion) {
+    lines.push('Fused process kernels against the previous path (same process, rounds interleaved; bit-identical results):');
+    for (const w of doc.fusion.workloads) {
+      lines.push(
+        `  ${pad(w.name, 15)} ${f(w.stepsPerSecond.fused)} vs ${f(w.stepsPerSecond.previous)} steps/s -> ${f(w.speedup)}x; ` +
+          `launches per step ${thousands(w.launches.fused)} vs ${thousands(w.launches.previous)}`,
+      );
+      lines.push(`  ${pad('', 15)} ${w.description}`);
+    }
+    lines.push('');
+  }
   const wk = doc.workers;
   if (wk) {
     lines.push(`Workers (CLI pool, ${wk.runs} runs of ${wk.trainingStepsPerRun} training steps, order ${wk.order.join(',')}):`);

@@ -6,6 +6,7 @@
  * the CLI pool, then the shipped presets as child processes.
  */
 import os from 'node:os';
+import { fileURLToPath } from 'node:url';
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend, type BackendName } from '../src/engine/backend.ts';
 import { longRun } from './long-run.ts';
@@ -27,6 +28,7 @@ import {
 import { timePresetInBrowser, type BrowserTiming } from './browser.ts';
 import { evaluateTargets, type BenchDocument, type PerAggregator } from './report.ts';
 import { measureWorkers, presetScaling, type PresetScaling, type WorkersReport } from './workers.ts';
+import { measureFusion, type FusionReport } from './fusion.ts';
 
 export interface BenchOptions {
   quick: boolean;
@@ -48,7 +50,7 @@ export interface BenchOptions {
   /** Aborting stops the preset being timed and skips the rest; the document is still returned. */
   stopPresets?: AbortSignal;
   /** Told when each phase starts. */
-  onPhase?: (phase: 'reference' | 'long-run' | 'workers' | 'presets' | 'browser') => void;
+  onPhase?: (phase: 'reference' | 'fusion' | 'long-run' | 'workers' | 'presets' | 'browser') => void;
 }
 
 export function defaultOptions(quick: boolean): BenchOptions {
@@ -189,6 +191,11 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
   const matmulMs = (flopsPerStep / (matmulCeiling * 1e9)) * 1000;
   const matmulProfiledMs = maxProfile.categories.matmul.ms;
 
+  // ---- fused kernels against the previous path ----
+  options.onPhase?.('fusion');
+  const fusion: FusionReport = await measureFusion(fileURLToPath(new URL(`../presets/${TARGET_PRESET}`, import.meta.url)), size, options.seconds, options.rounds, options.quick, log);
+  await initBackend('wasm');
+
   // ---- long run ----
   options.onPhase?.('long-run');
   log(`tensors: long run of ${options.longSteps} training steps`);
@@ -310,6 +317,7 @@ export async function runBench(options: BenchOptions, log: (line: string) => voi
       matmulShapes: maxProfile.matmuls,
       limit: limitText(launches, stepMs, maxProfile, maxProfile.matmulFlops, matmulCeiling),
     },
+    fusion,
     workers,
     presetScaling: scaling,
     presets,

@@ -34,6 +34,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import { simdKernels, type RawSimd } from './simd/simd-kernels.ts';
+import { worthTransposing } from './kernels-matmul.ts';
 
 export const PROCESS_KERNELS = { forward: 'FarfieldProcess', backward: 'FarfieldProcessGrad' } as const;
 
@@ -50,6 +51,16 @@ export interface ProcessAttrs {
   hasUpdateBias: boolean;
   hasOutputBias: boolean;
 }
+
+/**
+ * Block width of the stock WASM matmul's scalar loop, which runs a product
+ * with a transposed operand that Farfield's patch does not transpose first
+ * (src/engine/kernels-matmul.ts: too small to pay): each output is the sum,
+ * from 0, of 48-wide k-blocks each summed from 0 in k order. Found by
+ * reproducing that kernel's outputs bit for bit (test/engine/process-kernel.test.ts
+ * covers products of both kinds).
+ */
+const STOCK_BLOCK = 48;
 
 /** Leaky relu's slope as the stock kernel applies it (the attribute is rounded to float32). */
 const LEAKY = Math.fround(0.01);
@@ -324,6 +335,7 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     juT: 3 * HH,
     w2mT: HH,
     jmT: 2 * HH,
+    block: Math.max(3 * NH, EH, 3 * HH),
   };
   const s = carve(scratch(raw, 4 * totalFloats(sizes)), sizes);
   const ptr = (name: string) => raw.offset(t[name]!);
@@ -341,6 +353,31 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
   transpose(F, fi(s['w2mT']!), fi(ptr('w2m')), H, H);
   transpose(F, fi(s['jmT']!), fi(ptr('jm')), H, 2 * H);
   copy(F, fi(s['G']!), fi(ptr('dy')), NH);
+
+  /**
+   * A gradient product C[M,N] = A·B (A(i, k) at a + 4·(i·rs + k·ks), B [K,N]) summed as the stock
+   * path sums it: in k order when its patched matmul runs it (SIMD), else in 48-wide blocks.
+   */
+  const product = (simdPath: boolean, a: number, rs: number, ks: number, b: number, c: number, K: number, M: number, N: number) => {
+    if (simdPath || K <= STOCK_BLOCK) {
+      raw.mmStrided(a, b, c, K, M, N, rs, ks);
+      return;
+    }
+    for (let k0 = 0; k0 < K; k0 += STOCK_BLOCK) {
+      const target = k0 === 0 ? c : s['block']!;
+      raw.mmStrided(a + 4 * k0 * ks, b + 4 * k0 * N, target, Math.min(STOCK_BLOCK, K - k0), M, N, rs, ks);
+      if (k0 > 0) raw.add(c, target, c, M * N);
+    }
+  };
+  /** For a layer [rows, inner]·[inner, out]: whether the stock path runs dy·Wᵀ and Aᵀ·dy on the SIMD kernel. */
+  const simdPaths = (rows: number, inner: number, out: number) => ({
+    dA: worthTransposing([1, rows, out], [1, inner, out], false, true),
+    dB: worthTransposing([1, rows, inner], [1, rows, out], true, false),
+  });
+  const first = simdPaths(N, H, 2 * H);
+  const second = simdPaths(E, H, H);
+  const hiddenLayer = simdPaths(N, 3 * H, H);
+  const outputLayer = simdPaths(N, H, H);
 
   /** A chain of gradients for one tensor: the first share is written, later ones added. */
   const chains = new Set<string>();
@@ -363,9 +400,9 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     const p = (k: keyof StepLayout) => base + 4 * layout[k];
     const G = s['G']!;
     // output layer of the update: out = hidden·W_u2 (+ b_u2)
-    raw.mmNN(G, s['w2uT']!, s['dHidden']!, H, N, H, 0, false);
+    product(outputLayer.dA, G, H, 1, s['w2uT']!, s['dHidden']!, H, N, H);
     let g = into('w2u', s['gW2u']!);
-    raw.mmTN(p('hidden'), G, g, N, H, H);
+    product(outputLayer.dB, p('hidden'), 1, H, G, g, N, H, H);
     settle('w2u', g, HH);
     if (at.hasOutputBias) {
       g = into('b2u', s['gB']!);
@@ -380,9 +417,9 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
       raw.colSum(s['dX']!, g, N, H);
       settle('bu', g, H);
     }
-    raw.mmNN(s['dX']!, s['juT']!, s['dConcat']!, H, N, 3 * H, 0, false);
+    product(hiddenLayer.dA, s['dX']!, H, 1, s['juT']!, s['dConcat']!, H, N, 3 * H);
     g = into('ju', s['gJu']!);
-    raw.mmTN(p('concat'), s['dX']!, g, N, 3 * H, H);
+    product(hiddenLayer.dB, p('concat'), 1, 3 * H, s['dX']!, g, N, 3 * H, H);
     settle('ju', g, 3 * HH);
     raw.copyBlock(s['dConcat']!, s['dhc']!, N, H, 3 * H, H);
     raw.copyBlock(s['dConcat']! + 4 * H, s['da']!, N, H, 3 * H, H);
@@ -401,9 +438,9 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
       raw.gatherRows(s['da']!, dst, s['dm']!, E, H);
     }
     // message second layer: m = act(pre)·W₂ (+ b₂)
-    raw.mmNN(s['dm']!, s['w2mT']!, s['dAct']!, H, E, H, 0, false);
+    product(second.dA, s['dm']!, H, 1, s['w2mT']!, s['dAct']!, H, E, H);
     g = into('w2m', s['gW2m']!);
-    raw.mmTN(p('act'), s['dm']!, g, E, H, H);
+    product(second.dB, p('act'), 1, H, s['dm']!, g, E, H, H);
     settle('w2m', g, HH);
     if (at.hasMessageBias) {
       g = into('b2m', s['gB']!);
@@ -415,9 +452,9 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     // first layer: pre = P[src, :H] + P[dst, H:] + edge term, P = h·[W_s | W_d]
     raw.scatterPair(s['dPre']!, src, dst, s['dP']!, N, E, H);
     add('edgeTerm', s['dPre']!, EH);
-    raw.mmNN(s['dP']!, s['jmT']!, s['dhp']!, 2 * H, N, H, 0, false);
+    product(first.dA, s['dP']!, 2 * H, 1, s['jmT']!, s['dhp']!, 2 * H, N, H);
     g = into('jm', s['gJm']!);
-    raw.mmTN(p('h'), s['dP']!, g, N, H, 2 * H);
+    product(first.dB, p('h'), 1, H, s['dP']!, g, N, H, 2 * H);
     settle('jm', g, 2 * HH);
     // hᵗ's own uses, in the tape's order: the residual, then the concat, then the first layer
     if (step > 0) {

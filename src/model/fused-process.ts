@@ -3,14 +3,14 @@
  * src/engine/kernels-process.ts, and the call that runs it. The fused kernels
  * give the stock composition's bits, so the choice only changes speed; where
  * any part of that argument does not hold (another backend, no SIMD module,
- * the stock matmul, a product the stock path would leave to its scalar loop,
- * or anything per-step a caller watches) the stock composition runs.
+ * the stock matmul, or anything per-step a caller watches) the stock
+ * composition runs.
  */
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import type { ModelOptions } from './options.ts';
 import { fusedProcessEnabled, processSteps, type ProcessAggregator, type ProcessInputs } from '../engine/kernels-process.ts';
-import { isWasmMatMulPatched, worthTransposing } from '../engine/kernels-matmul.ts';
+import { isWasmMatMulPatched } from '../engine/kernels-matmul.ts';
 import { simdKernels } from '../engine/simd/simd-kernels.ts';
 
 const FUSED_AGGREGATORS: ReadonlySet<string> = new Set<ProcessAggregator>(['sum', 'mean', 'max', 'min']);
@@ -21,23 +21,6 @@ export interface ProcessWatchers {
   onStep?: unknown;
 }
 
-/**
- * Every product the stock backward pass takes transposed must take the SIMD
- * path there too ([rows, inner] · [inner, out] for each layer, as A·Bᵀ and Aᵀ·B).
- */
-function backwardOnSimdPath(nodes: number, edges: number, H: number): boolean {
-  const layers: [number, number, number][] = [
-    [nodes, H, 2 * H], // first message layer
-    [edges, H, H], // second message layer
-    [nodes, 3 * H, H], // update hidden layer
-    [nodes, H, H], // update output layer
-  ];
-  return layers.every(
-    ([rows, inner, out]) =>
-      worthTransposing([1, rows, out], [1, inner, out], false, true) && worthTransposing([1, rows, inner], [1, rows, out], true, false),
-  );
-}
-
 export function fusedProcessApplies(options: ModelOptions, watchers: ProcessWatchers, nodes: number, edges: number, steps: number): boolean {
   if (!fusedProcessEnabled() || options.message !== 'mlp' || options.update !== 'mlp') return false;
   if (!FUSED_AGGREGATORS.has(options.aggregator)) return false;
@@ -46,7 +29,6 @@ export function fusedProcessApplies(options: ModelOptions, watchers: ProcessWatc
   if (steps < 1 || nodes < 1 || edges < 1) return false;
   if (tf.getBackend() !== 'wasm' || !isWasmMatMulPatched()) return false;
   if (simdKernels(tf.backend() as unknown as BackendWasm) == null) return false;
-  if (tf.engine().state.gradientDepth > 0 && !backwardOnSimdPath(nodes, edges, options.hidden)) return false;
   return true;
 }
 

@@ -69,7 +69,7 @@ function differing(a: ArrayLike<number>, b: ArrayLike<number>): number {
 }
 
 function compareWays(model: Record<string, unknown>, data: TaskInstance[], steps: number): void {
-  const options = modelSchema.parse({ hidden: 32, steps: { rule: 'fixed', count: steps, trainJitter: 0 }, ...model });
+  const options = modelSchema.parse({ hidden: 32, ...model, steps: { rule: 'fixed', count: steps, trainJitter: 0 }, ...model });
   const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(11));
   const batch = uploadBatch(makeBatch(data, TRANSFORMS));
   try {
@@ -99,6 +99,18 @@ describe('fused process kernels give the stock composition’s bits', () => {
       });
     }
   }
+
+  it('small networks and batches, whose gradient products the stock path leaves to its blocked scalar loop', () => {
+    // hidden 8 with ~100-400 edges: Aᵀ·dy over the edges is not worth transposing, and its 48-wide blocks
+    // are summed separately; hidden 16 on 8 small graphs (the quick demo's shape) mixes both kinds.
+    const small = instances('er', 8, [1, 10], 29);
+    const larger = instances('er', 24, [1, 10], 31);
+    for (const aggregator of ['max', 'sum', 'mean']) {
+      compareWays({ aggregator, hidden: 16 }, small, 10);
+      compareWays({ aggregator, hidden: 8 }, larger, 7);
+      compareWays({ aggregator, hidden: 8, activation: 'leaky-relu', bias: false }, small, 3);
+    }
+  });
 
   it('ties (every weight equal) and nodes without incoming edges (DAGs), one step and many', () => {
     const ties = instances('er', 12, [3, 3], 5);

@@ -54,6 +54,11 @@
   (func (export "mm_nn") (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32) (param $bias i32) (param $relu i32)
     (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (local.get $K) (i32.const 1) (local.get $bias) (local.get $relu)))
 
+  ;; C[M,N] = A·B for A(i, k) at a + 4·(i·rs + k·ks) and B [K,N] row-major, from 0 in k order: one
+  ;; k-block of a product at a time (the stock scalar matmul's 48-wide blocks, see kernels-process.ts).
+  (func (export "mm_strided") (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32) (param $rs i32) (param $ks i32)
+    (call $mm (local.get $a) (local.get $b) (local.get $c) (local.get $K) (local.get $M) (local.get $N) (local.get $rs) (local.get $ks) (i32.const 0) (i32.const 0)))
+
   ;; C[M,N] = A·B with A(i, k) at a + 4·(i·rs + k·ks). Blocks of 4 rows x 8
   ;; columns keep 8 accumulators in registers.
   (func $mm (param $a i32) (param $b i32) (param $c i32) (param $K i32) (param $M i32) (param $N i32) (param $rs i32) (param $ks i32) (param $bias i32) (param $relu i32)

@@ -20,6 +20,7 @@ import { KERNELS_WASM_BASE64 } from './kernels-binary.ts';
 interface Exports {
   mm_tn(a: number, b: number, c: number, K: number, M: number, N: number): void;
   mm_nn(a: number, b: number, c: number, K: number, M: number, N: number, bias: number, relu: number): void;
+  mm_strided(a: number, b: number, c: number, K: number, M: number, N: number, rs: number, ks: number): void;
   gather_pair_add(p: number, src: number, dst: number, b: number, out: number, E: number, H: number): void;
   scatter_pair(dy: number, src: number, dst: number, out: number, nodes: number, E: number, H: number): void;
   scatter_by_arg(dy: number, arg: number, out: number, rows: number, n: number, C: number): void;
@@ -95,6 +96,8 @@ export interface RawSimd {
   free(pointer: number): void;
   mmNN(a: number, b: number, c: number, K: number, M: number, N: number, bias: number, relu: boolean): void;
   mmTN(a: number, b: number, c: number, K: number, M: number, N: number): void;
+  /** C[M,N] = A·B from 0 in k order, A(i, k) at a + 4·(i·rs + k·ks), B [K,N] row-major. */
+  mmStrided(a: number, b: number, c: number, K: number, M: number, N: number, rs: number, ks: number): void;
   gatherPairAdd(p: number, src: number, dst: number, b: number, out: number, E: number, H: number): void;
   scatterPair(dy: number, src: number, dst: number, out: number, nodes: number, E: number, H: number): void;
   scatterByArg(dy: number, arg: number, out: number, rows: number, n: number, C: number): void;
@@ -198,6 +201,7 @@ function bind(backend: BackendWasm, memory: WebAssembly.Memory, exports: Exports
     free: (pointer) => module._free(pointer),
     mmNN: (a, b, c, K, M, N, bias, relu) => exports.mm_nn(a, b, c, K, M, N, bias, relu ? 1 : 0),
     mmTN: (a, b, c, K, M, N) => exports.mm_tn(a, b, c, K, M, N),
+    mmStrided: (a, b, c, K, M, N, rs, ks) => exports.mm_strided(a, b, c, K, M, N, rs, ks),
     gatherPairAdd: (p, src, dst, b, out, E, H) => exports.gather_pair_add(p, src, dst, b, out, E, H),
     scatterPair: (dy, src, dst, out, nodes, E, H) => exports.scatter_pair(dy, src, dst, out, nodes, E, H),
     scatterByArg: (dy, arg, out, rows, n, C) => exports.scatter_by_arg(dy, arg, out, rows, n, C),
