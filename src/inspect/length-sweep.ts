@@ -73,7 +73,7 @@ export function lengthProbe(network: MessagePassingNetwork, transforms: FeatureT
   }
   const rng = new Rng(spec.seeds.base).fork('probe:length');
   for (const n of lengths) {
-    const { instance } = buildInstance(task.id, 'path', n, rng.fork(n), { weightRange: [1, 1], source: 0 });
+    const { instance } = buildInstance(spec.task, 'path', n, rng.fork(n), { weightRange: [1, 1], source: 0 });
     const source = instance.source ?? 0;
     const hops = hopsFrom(instance, source);
     let far = -1;

@@ -37,8 +37,11 @@ export function scaleProbe(network: MessagePassingNetwork, transforms: FeatureTr
   const base = new Rng(seed).fork('probe:scale');
   const [lo, hi] = spec.train.sizes;
   const sizes = Array.from({ length: graphs }, (_, i) => base.fork(`size:${i}`).int(lo, hi));
+  const task = getTask(spec.task);
+  // A task may refuse some scales outright (max-times: reliabilities above 1); those are left out and named.
+  const refused = scales.filter((lambda) => task.admitsWeightScale?.(spec.train.weightRange, lambda) === false);
   const points: ProbePoint[] = [];
-  for (const lambda of scales) {
+  for (const lambda of scales.filter((l) => !refused.includes(l))) {
     const instances = sizes.map(
       (n, i) => buildInstance(spec.task, spec.train.family, n, base.fork(i), { weightRange: spec.train.weightRange, weightScale: lambda, params: spec.train.familyParams }).instance,
     );
@@ -54,7 +57,6 @@ export function scaleProbe(network: MessagePassingNetwork, transforms: FeatureTr
     });
     points.push({ x: lambda, predicted: mean(pred), truth: mean(truth), mae: scorePredictions(instances, predictions).mae });
   }
-  const task = getTask(spec.task);
   return {
     kind: 'scale',
     title: 'Scale sweep',
@@ -65,6 +67,7 @@ export function scaleProbe(network: MessagePassingNetwork, transforms: FeatureTr
     points,
     note:
       `${graphs} fixed ${spec.train.family} graphs of ${lo}–${hi} nodes rebuilt at each λ (task '${task.id}' scales ${task.scaleShift === 'task' ? 'the values it draws itself' : 'the graph weights'}); ` +
-      'predicted = mean prediction over counted nodes, truth = mean exact target over the same nodes, mae = mean |prediction − target|. Training saw λ = 1 only.',
+      'predicted = mean prediction over counted nodes, truth = mean exact target over the same nodes, mae = mean |prediction − target|. Training saw λ = 1 only.' +
+      (refused.length ? ` Left out: λ = ${refused.join(', ')}, which the task refuses at these weights.` : ''),
   };
 }

@@ -87,6 +87,13 @@ export interface Task {
    * `buildInstance` in tasks/sample.ts follows this.
    */
   scaleShift?: 'graph' | 'task';
+  /**
+   * Added (optional): whether the task accepts weights drawn from `weightRange`
+   * at weight scale `scale` (absent: always). A max-times recurrence reads
+   * weights as reliabilities and refuses any above 1; probes that sweep the
+   * scale skip the scales a task refuses instead of failing.
+   */
+  admitsWeightScale?(weightRange: readonly [number, number], scale: number): boolean;
   /** Build the instance from a generated graph. Must draw randomness only from options.rng. */
   instance(graph: Graph, options: TaskOptions): TaskInstance;
   /**

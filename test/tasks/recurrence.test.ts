@@ -16,6 +16,8 @@ import { recurrenceAlignment } from '../../src/tasks/recurrence/alignment.ts';
 import type { RecurrenceSemiring, RecurrenceSpec } from '../../src/tasks/recurrence/options.ts';
 import { SEMIRINGS } from '../../src/tasks/recurrence/algebra.ts';
 import type { TaskInstance } from '../../src/tasks/types.ts';
+import { buildInstance } from '../../src/tasks/sample.ts';
+import { rungScaling, scaleLikeRung } from '../../src/tasks/rung-scaling.ts';
 
 const spec = (semiring: RecurrenceSemiring, over: Partial<RecurrenceSpec> = {}): RecurrenceSpec => ({
   semiring,
@@ -248,5 +250,39 @@ describe('suggested aggregator and message layer come from the catalogue', () =>
     expect(recurrenceAlignment('max-times')).toMatchObject({ aggregator: 'max', messages: ['max-plus', 'smooth-max-plus'] });
     expect(recurrenceAlignment('max-times').line).toMatch(/log/);
     expect(getTask({ recurrence: spec('min-plus') }).alignedAggregator).toBe('min');
+  });
+});
+
+describe('weight-scale rungs', () => {
+  it('scale the inputs exactly as the recurrence rung scaling says, and the target where a power exists', () => {
+    const cases: Array<[RecurrenceSpec, string, readonly [number, number], number]> = [
+      [spec('min-plus'), 'er', [1, 10], 3],
+      [spec('max-min', { source: 'drawn-widest-edge' }), 'grid', [1, 10], 0.5],
+      [spec('max-plus', { source: 'none', others: 'node-weights', direction: 'backward' }), 'dag', [1, 10], 10],
+      [spec('min-plus', { others: 'unit' }), 'tree', [1, 10], 7],
+      [spec('max-times'), 'geometric', [0.2, 0.5], 2],
+      [spec('plus-times'), 'dag', [0.5, 2], 2],
+    ];
+    const rng = new Rng(46);
+    for (const [recurrence, family, weightRange, c] of cases) {
+      const ref = { recurrence };
+      const scaling = rungScaling(ref);
+      for (let k = 0; k < 10; k++) {
+        const at1 = buildInstance(ref, family, 16, rng.fork(`${family}${k}`), { weightRange }).instance;
+        const atC = buildInstance(ref, family, 16, rng.fork(`${family}${k}`), { weightRange, weightScale: c }).instance;
+        const expected = scaleLikeRung(at1, scaling, c);
+        expect(atC.nodeInputs.flat()).toEqual(expected.nodeInputs.flat());
+        expect(atC.edgeInputs.flat()).toEqual(expected.edgeInputs.flat());
+        if (Number.isNaN(scaling.target)) continue; // products of path-many factors: no single power
+        atC.target.forEach((t, i) => expect(t).toBeCloseTo(expected.target[i]!, 9));
+      }
+    }
+  });
+
+  it('max-times admits only the scales that keep every factor within (0, 1]', () => {
+    const task = getTask({ recurrence: spec('max-times') });
+    expect(task.admitsWeightScale?.([0.5, 0.8], 1.25)).toBe(true);
+    expect(task.admitsWeightScale?.([0.5, 0.8], 1.3)).toBe(false);
+    expect(getTask({ recurrence: spec('max-times', { others: 'unit' }) }).admitsWeightScale?.([0.5, 0.8], 100)).toBe(true);
   });
 });

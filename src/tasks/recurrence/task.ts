@@ -41,6 +41,7 @@ import { SEMIRINGS } from './algebra.ts';
 import { ACYCLIC_ONLY, RECURRENCE_GLOSS, recurrenceLabel, recurrenceProblems, type RecurrenceSpec } from './options.ts';
 import { recurrenceRounds, solveRecurrence, type RecurrenceSystem } from './solver.ts';
 import { recurrenceAlignment } from './alignment.ts';
+import { recurrenceWeightProblems } from './check.ts';
 
 const WHERE = 'tasks/recurrence';
 const ALL_FAMILIES = ['er', 'geometric', 'grid', 'path', 'tree', 'dag'];
@@ -135,6 +136,7 @@ function makeTask(spec: RecurrenceSpec): Task {
     families: ACYCLIC_ONLY.has(spec.semiring) ? ['dag'] : [...ALL_FAMILIES],
     maskPolicy: maskPolicy(spec),
     scaleShift: spec.others === 'node-weights' ? 'task' : 'graph',
+    admitsWeightScale: (weightRange, scale) => recurrenceWeightProblems(spec, { train: { weightRange }, test: { weightScales: [scale] } }).length === 0,
     instance: (graph, options) => buildInstance(spec, graph, options),
     iterate: (_graph, inst, rounds) => recurrenceRounds(spec.semiring, systemOf(spec, inst), rounds, WHERE),
   };
