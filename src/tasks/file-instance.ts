@@ -29,7 +29,7 @@ export const FILE_TASK_RULES: Readonly<Record<string, FileTaskRule>> = {
 };
 
 export function fileTaskRule(task: Task): FileTaskRule {
-  const rule = Object.prototype.hasOwnProperty.call(FILE_TASK_RULES, task.id) ? FILE_TASK_RULES[task.id] : undefined;
+  const rule = task.fileRule ?? (Object.prototype.hasOwnProperty.call(FILE_TASK_RULES, task.id) ? FILE_TASK_RULES[task.id] : undefined);
   if (!rule) {
     throw new Error(`tasks/file-instance: task '${task.id}' cannot be scored on graph files; tasks that can: ${Object.keys(FILE_TASK_RULES).join(', ')}`);
   }

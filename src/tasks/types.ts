@@ -94,6 +94,13 @@ export interface Task {
    * scale skip the scales a task refuses instead of failing.
    */
   admitsWeightScale?(weightRange: readonly [number, number], scale: number): boolean;
+  /**
+   * Added (optional): what the task asks of a graph file (tasks/file-instance.ts):
+   * the weights it reads and whether it starts from a source. Tasks built from a
+   * spec (the recurrence) state it here; built-in tasks are listed in
+   * FILE_TASK_RULES. Absent from both: the task cannot be scored on files.
+   */
+  fileRule?: { weights: 'non-negative' | 'positive' | 'ignored'; source: boolean };
   /** Build the instance from a generated graph. Must draw randomness only from options.rng. */
   instance(graph: Graph, options: TaskOptions): TaskInstance;
   /**

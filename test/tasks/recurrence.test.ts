@@ -18,6 +18,9 @@ import { SEMIRINGS } from '../../src/tasks/recurrence/algebra.ts';
 import type { TaskInstance } from '../../src/tasks/types.ts';
 import { buildInstance } from '../../src/tasks/sample.ts';
 import { rungScaling, scaleLikeRung } from '../../src/tasks/rung-scaling.ts';
+import { fileInstance } from '../../src/tasks/file-instance.ts';
+import { readGraphFile } from '../../src/graphs/files/read.ts';
+import { readFileSync } from 'node:fs';
 
 const spec = (semiring: RecurrenceSemiring, over: Partial<RecurrenceSpec> = {}): RecurrenceSpec => ({
   semiring,
@@ -284,5 +287,33 @@ describe('weight-scale rungs', () => {
     expect(task.admitsWeightScale?.([0.5, 0.8], 1.25)).toBe(true);
     expect(task.admitsWeightScale?.([0.5, 0.8], 1.3)).toBe(false);
     expect(getTask({ recurrence: spec('max-times', { others: 'unit' }) }).admitsWeightScale?.([0.5, 0.8], 100)).toBe(true);
+  });
+});
+
+describe('on a real graph file', () => {
+  // presets/graphs/us-states.csv: U.S. states sharing a border, weights in km between centroids,
+  // derived from the us-atlas package (ISC; U.S. Census Bureau boundaries, public domain).
+  const file = readGraphFile({ name: 'us-states.csv' }, readFileSync(new URL('../../presets/graphs/us-states.csv', import.meta.url), 'utf8'));
+
+  it('reproduces the built-in shortest-path, widest-path and hop-count file instances bit for bit', () => {
+    const pairs: Array<[string, RecurrenceSpec]> = [
+      ['shortest-path', spec('min-plus')],
+      ['widest-path', spec('max-min', { source: 'drawn-widest-edge' })],
+      ['hop-count', spec('min-plus', { others: 'unit' })],
+    ];
+    for (const [builtin, recurrence] of pairs) {
+      const a = fileInstance(getTask(builtin), file, { source: 'Kansas' }).instance;
+      const b = fileInstance(getTask({ recurrence }), file, { source: 'Kansas' }).instance;
+      expect(b.target.every((t, i) => Object.is(t, a.target[i]))).toBe(true);
+      expect(b.mask).toEqual(a.mask);
+    }
+  });
+
+  it('scores reachability and refuses what the file cannot give', () => {
+    const reach = fileInstance(getTask({ recurrence: spec('or-and', { others: 'unit' }) }), file, { source: 'Kansas' }).instance;
+    const hops = fileInstance(getTask('hop-count'), file, { source: 'Kansas' }).instance;
+    expect(reach.target).toEqual(hops.mask); // reached exactly where a hop count exists
+    expect(() => fileInstance(getTask({ recurrence: spec('max-times') }), file, { source: 'Kansas' })).toThrow(/max-times allows \(0, 1\]/);
+    expect(() => fileInstance(getTask({ recurrence: spec('max-plus', { source: 'none', others: 'node-weights' }) }), file)).toThrow(/cannot be scored on graph files/);
   });
 });

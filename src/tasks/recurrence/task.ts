@@ -120,6 +120,19 @@ function maskPolicy(spec: RecurrenceSpec): string {
   return `Nodes no start reaches keep the zero (${zero}): mask 0, target 0; every other node counts.${atSource}`;
 }
 
+/**
+ * What a graph file must carry: a recurrence from a source reads the file's
+ * weights (positive where they act as widths or reliabilities; the solver still
+ * refuses a reliability above 1 or a cycle it cannot iterate) or none with unit
+ * factors. Node weights are drawn, and a file's graph draws nothing: no rule.
+ */
+function fileRuleOf(spec: RecurrenceSpec): Pick<Task, 'fileRule'> {
+  if (spec.others === 'node-weights') return {};
+  if (spec.others === 'unit') return { fileRule: { weights: 'ignored', source: true } };
+  const positive = spec.semiring === 'max-min' || spec.semiring === 'max-times';
+  return { fileRule: { weights: positive ? 'positive' : 'non-negative', source: true } };
+}
+
 function makeTask(spec: RecurrenceSpec): Task {
   const problems = recurrenceProblems(spec);
   if (problems.length) throw new Error(`${WHERE}: ${problems.join('; ')}`);
@@ -136,6 +149,7 @@ function makeTask(spec: RecurrenceSpec): Task {
     families: ACYCLIC_ONLY.has(spec.semiring) ? ['dag'] : [...ALL_FAMILIES],
     maskPolicy: maskPolicy(spec),
     scaleShift: spec.others === 'node-weights' ? 'task' : 'graph',
+    ...fileRuleOf(spec),
     admitsWeightScale: (weightRange, scale) => recurrenceWeightProblems(spec, { train: { weightRange }, test: { weightScales: [scale] } }).length === 0,
     instance: (graph, options) => buildInstance(spec, graph, options),
     iterate: (_graph, inst, rounds) => recurrenceRounds(spec.semiring, systemOf(spec, inst), rounds, WHERE),
