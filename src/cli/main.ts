@@ -33,8 +33,8 @@ Commands:
       combine shard results (run --shard i/N) and recompute the statistics
   report <results.json> [--out report.html] [--base URL]
       one self-contained HTML file: question, arms, setup, every figure, verdicts with caveats, fingerprint and share link; opens offline, prints to A4
-  score <network.json> [<preset.json | link>] [--json]
-      score a saved network on its own ladder (must reproduce its run's errors exactly) or another preset's, without retraining
+  score <network.json> [<preset.json | link>] [--graphs a.gr,b.csv] [--json]
+      score a saved network on its own ladder (must reproduce its run's errors exactly), another preset's, or graph files, without retraining
   bench [--quick] [--json] [--presets a,b | --skip-presets] [--long-steps N] [--seconds S] [--workers K]
       measure WASM vs CPU training speed, FLOP/s, worker scaling, preset wall times and tensor leaks; check the speed targets
 

@@ -1,13 +1,16 @@
 /**
  * Scoring a saved network without retraining: on a spec's ladder (the test
  * graphs of the network's own seed, generated exactly as the run that trained
- * it generated them) or on given graphs. Each set is scored by the same
- * `evaluateSet` the run used, so on the network's own spec the numbers are
- * the recorded ones to the last bit; `compareRecorded` checks that.
- * Host-agnostic.
+ * it generated them) and its graph files. Each set is scored by the same code
+ * the run used (`evaluateSet`, `evaluateLarge` for files), so on the network's
+ * own spec the numbers are the recorded ones to the last bit;
+ * `compareRecorded` checks that. Host-agnostic.
  */
 import type { ExperimentSpec } from './spec.ts';
 import { makeSeedData } from './datasets.ts';
+import { fileRung, type GraphFileContent } from './file-rungs.ts';
+import { getTask } from '../tasks/registry.ts';
+import { evaluateLarge } from '../train/evaluate-large.ts';
 import type { SavedNetwork, SavedRung } from './saved-network.ts';
 import { specHash } from './results.ts';
 import type { MessagePassingNetwork } from '../model/network.ts';
@@ -28,7 +31,7 @@ export interface ScoredSet {
 export interface LadderScore {
   inDistribution: ScoredSet;
   ladder: ScoredSet[];
-  /** Whether the ladder is the one the network's own run was scored on (then the numbers must match). */
+  /** Whether the generated rungs are the ones the network's own run was scored on (then the numbers must match). */
   ownLadder: boolean;
 }
 
@@ -39,8 +42,21 @@ export function checkSameTask(file: SavedNetwork, ladder: ExperimentSpec): void 
   }
 }
 
-export function scoreOnLadder(file: SavedNetwork, network: MessagePassingNetwork, ladder: ExperimentSpec): LadderScore {
+/**
+ * The ladder's generated rungs from the network's seed, then each of its graph
+ * files (`test.files`, content supplied by the host) as one more rung, scored
+ * in edge chunks exactly as a run scores them.
+ */
+export interface LadderOptions {
+  /** The content of the ladder's graph files. */
+  files?: readonly GraphFileContent[];
+  /** Whether this is the network's own ladder; default: the ladder's spec hash equals the network's. */
+  own?: boolean;
+}
+
+export function scoreOnLadder(file: SavedNetwork, network: MessagePassingNetwork, ladder: ExperimentSpec, options: LadderOptions = {}): LadderScore {
   checkSameTask(file, ladder);
+  const task = getTask(ladder.task);
   const data = makeSeedData(ladder, file.seed);
   const score = (family: string, size: number | null, scale: number, instances: readonly TaskInstance[]): ScoredSet => ({
     family,
@@ -51,13 +67,15 @@ export function scoreOnLadder(file: SavedNetwork, network: MessagePassingNetwork
   });
   return {
     inDistribution: score(ladder.train.family, null, 1, data.fit),
-    ladder: data.rungs.map((r) => score(r.family, r.size, r.scale, r.instances)),
-    ownLadder: specHash(ladder) === file.specHash,
+    ladder: [
+      ...data.rungs.map((r) => score(r.family, r.size, r.scale, r.instances)),
+      ...(ladder.test.files ?? []).map((f): ScoredSet => {
+        const rung = fileRung(task, f, options.files);
+        return { family: rung.family, size: rung.instance.nodes, scale: 1, graphs: 1, metrics: evaluateLarge(network, rung.instance, file.transforms).metrics };
+      }),
+    ],
+    ownLadder: options.own ?? specHash(ladder) === file.specHash,
   };
-}
-
-export function scoreOnGraphs(file: SavedNetwork, network: MessagePassingNetwork, label: string, instances: readonly TaskInstance[]): ScoredSet {
-  return { family: label, size: null, scale: 1, graphs: instances.length, metrics: evaluateSet(network, instances, file.transforms).metrics };
 }
 
 /** A recorded value (null where it was not finite) against a fresh one, compared exactly. */
@@ -68,7 +86,8 @@ function same(recorded: number | null, fresh: number): boolean {
 export interface RecordedCheck {
   set: ScoredSet;
   recorded: SavedRung | null;
-  exact: boolean;
+  /** Equal to the last bit; null where the run recorded nothing for this set (a graph file added now). */
+  exact: boolean | null;
 }
 
 /** Every scored set beside the run's recorded errors, equal to the last bit or not. */
@@ -77,7 +96,7 @@ export function compareRecorded(file: SavedNetwork, score: LadderScore): Recorde
     s.size === null ? file.recorded.inDistribution : (file.recorded.ladder.find((r) => r.family === s.family && r.size === s.size && r.scale === s.scale) ?? null);
   return [score.inDistribution, ...score.ladder].map((set) => {
     const recorded = find(set);
-    const exact = recorded !== null && same(recorded.mae, set.metrics.mae) && same(recorded.mre, set.metrics.mre) && same(recorded.miss, set.metrics.miss);
+    const exact = recorded === null ? null : same(recorded.mae, set.metrics.mae) && same(recorded.mre, set.metrics.mre) && same(recorded.miss, set.metrics.miss);
     return { set, recorded, exact };
   });
 }

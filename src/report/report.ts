@@ -23,6 +23,7 @@ import { AUTO_LOG_DECADES, buildEvidence, type EvidenceView, type GateRow, type 
 import { autoLogReason, evidenceFigures } from '../ui/figure-list.ts';
 import { num, percent, pValue } from '../ui/format.ts';
 import { canonicalJson } from '../util/hash.ts';
+import { taskLabel } from '../tasks/registry.ts';
 import { REPORT_CSS } from './report-style.ts';
 
 export interface ReportOptions {
@@ -104,7 +105,7 @@ function armsSection(spec: ExperimentSpec, view: EvidenceView): string {
 function setupSection(spec: ExperimentSpec, view: EvidenceView): string {
   const t = spec.test;
   const rows: Array<[string, string]> = [
-    ['task', specValue(spec.task)],
+    ['task', taskLabel(spec.task)],
     ['metric', `${view.metricLabel} (also picks the kept weights)`],
     ['training graphs', `${spec.train.graphs} ${spec.train.family} graphs of ${spec.train.sizes[0]}–${spec.train.sizes[1]} nodes, weights in [${spec.train.weightRange.join(', ')}]${Object.keys(spec.train.familyParams).length ? `, ${specValue(spec.train.familyParams)}` : ''}`],
     [
@@ -247,7 +248,7 @@ export async function buildReport(doc: ResultsDocument, options: ReportOptions):
 <body>
 <main>
 <header>
-  <p class="kicker">Farfield experiment sheet · ${esc(specValue(spec.task))} · ${spec.arms.length} arms × ${spec.seeds.count} seeds</p>
+  <p class="kicker">Farfield experiment sheet · ${esc(taskLabel(spec.task))} · ${spec.arms.length} arms × ${spec.seeds.count} seeds</p>
   <h1 data-question>${esc(spec.question)}</h1>
   ${spec.expectation ? `<p class="expectation"><strong>Expectation.</strong> ${esc(spec.expectation)}</p>` : ''}
 </header>

@@ -48,6 +48,18 @@ const rung = z.object({
   depthMean: value,
   depthMax: value,
   meanDegree: value,
+  /** Graph-file rungs: which file, its size and what was counted. */
+  file: z
+    .object({
+      name: z.string().max(400),
+      sha256: z.string().max(64),
+      nodes: count(1e8),
+      edges: count(1e9),
+      directed: z.boolean(),
+      source: z.string().max(200).optional(),
+      counted: count(1e8),
+    })
+    .optional(),
 });
 const run = z.object({
   index: count(LIMITS.totalRuns.max),

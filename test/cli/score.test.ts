@@ -2,7 +2,8 @@
  * Saved networks: `run --keep-networks` writes each trained network in
  * TensorFlow.js's weights format, and `score` rescores it without retraining,
  * reproducing the per-rung errors its run recorded in results.json to the last
- * bit; a changed shard or manifest is caught.
+ * bit, generated rungs and a graph-file rung alike; a changed shard or
+ * manifest is caught.
  */
 import { describe, expect, it } from 'vitest';
 import { copyFileSync, mkdtempSync, readFileSync, readdirSync, writeFileSync } from 'node:fs';
@@ -10,7 +11,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as tf from '@tensorflow/tfjs-core';
 import '@tensorflow/tfjs-backend-cpu';
-import { farfield, tiny } from './spawn.ts';
+import { farfield, root, tiny } from './spawn.ts';
 
 interface Metrics {
   mae: number;
@@ -37,7 +38,13 @@ interface Manifest {
 describe('saved networks: run --keep-networks, then score', () => {
   const dir = mkdtempSync(join(tmpdir(), 'ff-score-'));
   const nets = join(dir, 'nets');
-  const ran = farfield('run', tiny, '--json', '--quiet', '--workers', '2', '--keep-networks', nets);
+  // The tiny fixture with one graph file as an extra rung, the file beside the preset.
+  const states = join(root, 'presets/graphs/us-states.csv');
+  copyFileSync(states, join(dir, 'us-states.csv'));
+  const preset = join(dir, 'tiny-with-file.json');
+  const spec = JSON.parse(readFileSync(tiny, 'utf8')) as { test: Record<string, unknown> };
+  writeFileSync(preset, JSON.stringify({ ...spec, test: { ...spec.test, files: [{ name: 'us-states.csv' }] } }));
+  const ran = farfield('run', preset, '--json', '--quiet', '--workers', '2', '--keep-networks', nets);
   const results = JSON.parse(ran.stdout) as Results;
   const files = ran.code === 0 ? readdirSync(nets).sort() : [];
 
@@ -58,15 +65,18 @@ describe('saved networks: run --keep-networks, then score', () => {
     tf.dispose(Object.values(decoded));
   });
 
-  it('scores a saved network on its own ladder and reproduces its run’s per-rung errors exactly', () => {
+  it('scores a saved network on its own ladder and reproduces its run’s per-rung errors exactly, graph-file rung included', () => {
     for (const stem of ['run0-max-seed3', 'run3-sum-seed4']) {
-      const r = farfield('score', join(nets, `${stem}.json`), '--json');
+      // The network's spec names the file by hash; --graphs supplies its content.
+      const r = farfield('score', join(nets, `${stem}.json`), '--graphs', states, '--json');
       expect(r.code, r.stderr).toBe(0);
       const scored = JSON.parse(r.stdout) as Scored;
       expect(scored).toMatchObject({ ownLadder: true, reproduces: true });
       const run = results.runs.find((x) => stem === `run${x.index}-${x.arm}-seed${x.seed}`)!;
       // Compared with results.json itself, not only the copy in the network file.
       const [inDistribution, ...ladder] = scored.sets;
+      expect(ladder.map((s) => s.family)).toEqual(['er', 'er', 'file:us-states.csv']);
+      expect(scored.sets.every((s) => s.exact)).toBe(true);
       expect(inDistribution!.metrics).toMatchObject(run.inDistribution);
       expect(ladder.map((s) => [s.family, s.size, s.scale, s.metrics.mae, s.metrics.mre, s.metrics.miss])).toEqual(
         run.ladder.map((l) => [l.family, l.size, l.scale, l.metrics.mae, l.metrics.mre, l.metrics.miss]),
@@ -82,7 +92,7 @@ describe('saved networks: run --keep-networks, then score', () => {
     const values = new Float32Array(shard.buffer.slice(shard.byteOffset, shard.byteOffset + shard.byteLength));
     values[0] = values[0]! + 0.25;
     writeFileSync(join(changed, `${stem}.bin`), new Uint8Array(values.buffer));
-    const r = farfield('score', join(changed, `${stem}.json`));
+    const r = farfield('score', join(changed, `${stem}.json`), '--graphs', states);
     expect(r.code).toBe(1);
     expect(r.stdout).toMatch(/NO/);
     expect(r.stderr).toMatch(/differ from the errors the run recorded/);
@@ -95,8 +105,9 @@ describe('saved networks: run --keep-networks, then score', () => {
     expect(escaped.code).toBe(1);
     expect(escaped.stderr).toMatch(/weightsManifest\[0\]\.paths\[0\]: got "\.\.\/\.\.\/etc\/passwd", allowed a file name beside the JSON/);
 
-    const graphs = farfield('score', join(nets, `${stem}.json`), '--graphs', 'x.txt');
-    expect(graphs.code).toBe(2);
-    expect(graphs.stderr).toMatch(/--graphs: not yet supported/);
+    // The spec names a graph file the network JSON cannot carry: its content must be given.
+    const missing = farfield('score', join(nets, `${stem}.json`));
+    expect(missing.code).toBe(1);
+    expect(missing.stderr).toMatch(/us-states\.csv.*give it with --graphs PATH/);
   });
 });

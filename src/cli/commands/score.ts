@@ -1,22 +1,25 @@
 /**
- * `farfield score <network.json> [<preset.json | link>] [--json]`: score a
- * network saved by `run --keep-networks` without retraining. On its own
- * spec's ladder (the default) the errors must equal, to the last bit, the ones
- * its run recorded; the command says so and exits 1 if they do not. Another
- * preset of the same task gives its ladder, generated from the network's seed.
+ * `farfield score <network.json> [<preset.json | link>] [--graphs a.gr,b.csv] [--json]`:
+ * score a network saved by `run --keep-networks` without retraining. On its
+ * own spec's ladder (the default) the errors must equal, to the last bit, the
+ * ones its run recorded; the command says so and exits 1 if they do not.
+ * Another preset of the same task gives its ladder, generated from the
+ * network's seed. `--graphs` adds graph files as rungs (or supplies the
+ * content of files the spec names), read as `run --graphs` reads them.
  */
 import { readFileSync, statSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { parse, UsageError } from '../args.ts';
 import { loadSpec } from '../load.ts';
+import { attachGraphFiles, graphsFlag } from '../graph-files.ts';
 import { num, renderTable } from '../format.ts';
 import { initBackend } from '../../engine/backend.ts';
-import { ENGINE_VERSION } from '../../experiment/results.ts';
+import { ENGINE_VERSION, specHash } from '../../experiment/results.ts';
 import { loadSavedNetwork, NetworkFileError, readSavedNetwork, shardBytes, type SavedNetwork } from '../../experiment/saved-network.ts';
 import { compareRecorded, scoreOnLadder, type RecordedCheck, type ScoredSet } from '../../experiment/score.ts';
 import { readJsonText, JsonTextError } from '../../share/json-text.ts';
 
-const USAGE = 'usage: farfield score <network.json> [<preset.json | link>] [--json]';
+const USAGE = 'usage: farfield score <network.json> [<preset.json | link>] [--graphs a.gr,b.csv] [--json]';
 /** The JSON half of a saved network is small (a spec and a manifest); the shard holds the numbers. */
 const MAX_JSON_BYTES = 1024 * 1024;
 
@@ -64,29 +67,33 @@ function render(file: SavedNetwork, sets: readonly ScoredSet[], checks: readonly
   const rows: string[][] = [['set', 'graphs', 'mae', 'mre', 'miss', ...(checks ? ['recorded mae', 'same bits'] : [])]];
   sets.forEach((s, i) => {
     const c = checks?.[i];
-    rows.push([setLabel(s), String(s.graphs), num(s.metrics.mae), num(s.metrics.mre), num(s.metrics.miss), ...(c ? [num(c.recorded?.mae ?? NaN), c.exact ? 'yes' : 'NO'] : [])]);
+    const same = c?.exact === null ? 'not recorded' : c?.exact ? 'yes' : 'NO';
+    rows.push([setLabel(s), String(s.graphs), num(s.metrics.mae), num(s.metrics.mre), num(s.metrics.miss), ...(c ? [num(c.recorded?.mae ?? NaN), same] : [])]);
   });
   return `${file.arm}, seed ${file.seed} (run ${file.runIndex} of spec ${file.specHash}; trained by farfield ${file.engineVersion})\n${renderTable(rows)}`;
 }
 
 export async function commandScore(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, { json: { type: 'boolean' }, graphs: { type: 'string' } });
-  if (values.graphs !== undefined) {
-    throw new UsageError('--graphs: not yet supported (scoring on graph files arrives with the graph-file readers); score on a preset ladder instead: ' + USAGE);
-  }
   if (positionals.length < 1 || positionals.length > 2) throw new UsageError(USAGE);
   const { file, data } = readNetwork(positionals[0]!);
-  const ladder = positionals[1] ? (await loadSpec(positionals[1])).spec : file.spec;
+  const loaded = positionals[1] ? await loadSpec(positionals[1]) : null;
+  const base = loaded?.spec ?? file.spec;
+  // Files the preset names resolve beside it; --graphs files are added as rungs or supply named ones.
+  const attached = await attachGraphFiles(base, loaded?.source === 'file' ? positionals[1]! : null, graphsFlag(values.graphs));
+  const ladder = attached.spec;
   if (file.engineVersion !== ENGINE_VERSION) {
     process.stderr.write(`score: the network was trained by farfield ${file.engineVersion}, this is ${ENGINE_VERSION}; the numbers may differ from the recorded ones\n`);
   }
   await initBackend('wasm');
   const network = loadSavedNetwork(file, data, positionals[0]!);
   try {
-    const score = scoreOnLadder(file, network, ladder);
+    // Own ladder: the spec the network was trained on, whatever graph files are added to it now.
+    const score = scoreOnLadder(file, network, ladder, { files: attached.files, own: specHash(base) === file.specHash });
     const sets = [score.inDistribution, ...score.ladder];
     const checks = score.ownLadder ? compareRecorded(file, score) : null;
-    const reproduces = checks ? checks.every((c) => c.exact) : null;
+    const compared = checks?.filter((c) => c.exact !== null) ?? [];
+    const reproduces = compared.length ? compared.every((c) => c.exact) : null;
     if (values.json) {
       const plain = (s: ScoredSet, i: number) => ({ ...s, ...(checks ? { recorded: checks[i]!.recorded, exact: checks[i]!.exact } : {}) });
       process.stdout.write(JSON.stringify({ arm: file.arm, seed: file.seed, specHash: file.specHash, ownLadder: score.ownLadder, reproduces, sets: sets.map(plain) }, null, 1) + '\n');
@@ -95,10 +102,10 @@ export async function commandScore(args: string[]): Promise<number> {
       if (reproduces === null) process.stdout.write('Scored on another spec\'s ladder (graphs from the network\'s seed): nothing recorded to compare.\n');
     }
     if (reproduces === false) {
-      process.stderr.write(`score: ${checks!.filter((c) => !c.exact).length} set(s) differ from the errors the run recorded\n`);
+      process.stderr.write(`score: ${compared.filter((c) => !c.exact).length} set(s) differ from the errors the run recorded\n`);
       return 1;
     }
-    if (reproduces && !values.json) process.stdout.write(`All ${sets.length} sets reproduce the run's recorded errors exactly.\n`);
+    if (reproduces && !values.json) process.stdout.write(`All ${compared.length} recorded sets reproduce the run's errors exactly.\n`);
     return 0;
   } finally {
     network.dispose();
