@@ -17,7 +17,7 @@ import { checkedWeights, fileTaskRule, fileToGraph } from '../tasks/file-instanc
 import { sampledGraph, type Sample } from '../tasks/sample.ts';
 import { GRAPH_FILE_LIMITS } from '../graphs/files/caps.ts';
 import { GraphFileError } from '../graphs/files/types.ts';
-import { getTask } from '../tasks/registry.ts';
+import { getTask, type TaskRef } from '../tasks/registry.ts';
 
 /** Read a file whole, refusing it (with the cap) before reading when it is larger than its format allows. */
 export async function readGraphBytes(path: string, shownAs: string, cap: number): Promise<Uint8Array> {
@@ -117,7 +117,7 @@ export async function attachGraphFiles(spec: ExperimentSpec, presetPath: string 
  * the file's node ids (`ids`, index = node number) and what was read. The file
  * draws nothing, so there is no seed (null); weightRange is the file's own.
  */
-export async function sampleFile(taskId: string, path: string, options: { source?: string; weight?: string; directed?: boolean }): Promise<FileSample> {
+export async function sampleFile(taskId: TaskRef, path: string, options: { source?: string; weight?: string; directed?: boolean }): Promise<FileSample> {
   const paths = graphsFlag(path);
   if (paths.length !== 1) throw new UsageError(`--graphs: sample reads one file, got ${paths.length}`);
   const bytes = await readGraphBytes(resolve(path), path, byteCap(inferFormat(path)));

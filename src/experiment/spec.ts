@@ -16,6 +16,7 @@ import {
   RECURRENCE_OTHERS,
   RECURRENCE_SEMIRINGS,
   RECURRENCE_SOURCES,
+  recurrenceProblems,
   type RecurrenceSpec,
 } from '../tasks/recurrence/options.ts';
 
@@ -441,6 +442,17 @@ function expandSweep(spec: ExperimentSpec, input: unknown): ExperimentSpec {
   if (arms.length > LIMITS.arms.max) throw new SpecError([`sweep: expands to ${arms.length} arms, allowed at most ${LIMITS.arms.max}`]);
   const { sweep: _expanded, ...rest } = spec;
   return { ...rest, arms };
+}
+
+/** A `task` value alone (e.g. from a command-line flag): a task id or a recurrence object, refused as the spec would refuse it. */
+export function parseTaskRef(input: unknown): ExperimentSpec['task'] {
+  const result = specSchema.shape.task.safeParse(input);
+  if (!result.success) throw new SpecError(result.error.issues.slice(0, 12).map((issue) => describeIssue({ ...issue, path: ['task', ...issue.path] }, { task: input })));
+  if (typeof result.data !== 'string') {
+    const problems = recurrenceProblems(result.data.recurrence);
+    if (problems.length) throw new SpecError(problems);
+  }
+  return result.data;
 }
 
 /** Validate and normalise untrusted input; throws SpecError naming every bad field. */

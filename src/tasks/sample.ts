@@ -18,7 +18,7 @@ import { getFamily } from '../graphs/registry.ts';
 import { DEFAULT_WEIGHT_RANGE } from '../graphs/common.ts';
 import { scaleWeights, toPlainGraph } from '../graphs/plain.ts';
 import type { GraphFamily } from '../graphs/types.ts';
-import { getTask, type TaskRef } from './registry.ts';
+import { getTask, taskLabel, type TaskRef } from './registry.ts';
 import type { Task, TaskInstance } from './types.ts';
 
 const WHERE = 'tasks/sample';
@@ -94,7 +94,7 @@ export function roundStatesOf(task: Task, graph: Graph, instance: TaskInstance):
 }
 
 export interface SampleOptions extends BuildOptions {
-  task: string;
+  task: TaskRef;
   family: string;
   nodes: number;
   count: number;
@@ -116,7 +116,7 @@ export interface SampledGraph {
 }
 
 export interface Sample {
-  task: string;
+  task: TaskRef;
   family: string;
   seed: number;
   weightRange: [number, number];
@@ -154,7 +154,7 @@ export function sampleGraphs(options: SampleOptions): Sample {
   const graphs: SampledGraph[] = [];
   for (let i = 0; i < count; i++) {
     const built = buildInstance(task, family, nodes, base.fork(i), { weightRange, weightScale, params, source });
-    graphs.push(sampledGraph(task, built.graph, built.instance));
+    graphs.push(sampledGraph(taskLabel(task), built.graph, built.instance));
   }
   return { task, family, seed, weightRange: [weightRange[0], weightRange[1]], weightScale, graphs };
 }

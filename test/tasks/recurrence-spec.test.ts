@@ -10,6 +10,8 @@ import type { SpecInput } from '../../src/experiment/spec.ts';
 import { canonicalJson } from '../../src/util/hash.ts';
 import { decodeSpecLink, encodeSpecLink } from '../../src/share/link.ts';
 import { specRefusal, tinySpec } from '../helpers.ts';
+import { spawnSync } from 'node:child_process';
+import { fileURLToPath } from 'node:url';
 
 const base = (task: unknown, over: Record<string, unknown> = {}): Record<string, unknown> => ({
   farfield: 1,
@@ -69,5 +71,24 @@ describe('task as a recurrence object', () => {
     expect(decoded.spec).toEqual(b);
     expect(specHash(decoded.spec)).toBe(specHash(b));
     expect(canonicalJson(tinySpec())).toContain('"task":"shortest-path"');
+  });
+});
+
+describe('a recurrence on the command line', () => {
+  it('farfield sample --task takes the recurrence as JSON and refuses it as the spec would', () => {
+    const bin = fileURLToPath(new URL('../../bin/farfield.mjs', import.meta.url));
+    const run = (...args: string[]) => spawnSync(process.execPath, [bin, 'sample', ...args], { encoding: 'utf8', timeout: 60_000 });
+    const ok = run('--task', '{"recurrence":{"semiring":"plus-times","others":"unit"}}', '--family', 'dag', '--nodes', '6', '--seed', '2');
+    expect(ok.status, ok.stderr).toBe(0);
+    const sample = JSON.parse(ok.stdout) as { task: unknown; graphs: Array<{ edges: Array<[number, number, number]>; target: number[]; source: number }> };
+    expect(sample.task).toEqual({ recurrence: { semiring: 'plus-times', source: 'drawn', others: 'unit', direction: 'forward' } });
+    // Path counts from the source, recomputed by hand in topological (node) order.
+    const g = sample.graphs[0]!;
+    const count = g.target.map((_, v) => (v === g.source ? 1 : 0));
+    for (let v = 0; v < count.length; v++) for (const [a, b] of g.edges) if (b === v) count[v]! += count[a]!;
+    expect(g.target).toEqual(count);
+    const bad = run('--task', '{"recurrence":{"semiring":"or-and"}}', '--family', 'dag', '--nodes', '6');
+    expect(bad.status).not.toBe(0);
+    expect(bad.stderr).toMatch(/--task: task\.recurrence\.others: got "edge-weights" with semiring "or-and", allowed "unit"/);
   });
 });

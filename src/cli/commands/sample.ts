@@ -2,6 +2,26 @@ import { parse, UsageError, intFlag } from '../args.ts';
 import { sampleGraphs } from '../../tasks/sample.ts';
 import { LIMITS } from '../../experiment/limits.ts';
 import { sampleFile } from '../graph-files.ts';
+import { SpecError, parseTaskRef } from '../../experiment/spec.ts';
+import type { TaskRef } from '../../tasks/registry.ts';
+
+/** `--task`: a task id, or a recurrence as JSON (`'{"recurrence":{"semiring":"max-plus"}}'`), checked as a spec's task is. */
+function taskFlag(value: string): TaskRef {
+  let input: unknown = value;
+  if (value.trimStart().startsWith('{')) {
+    try {
+      input = JSON.parse(value);
+    } catch (error) {
+      throw new UsageError(`--task: not valid JSON (${error instanceof Error ? error.message : String(error)}); give a task id or '{"recurrence":{"semiring":...}}'`);
+    }
+  }
+  try {
+    return parseTaskRef(input);
+  } catch (error) {
+    if (error instanceof SpecError) throw new UsageError(`--task: ${error.message}`);
+    throw error;
+  }
+}
 
 export async function commandSample(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, {
@@ -20,7 +40,7 @@ export async function commandSample(args: string[]): Promise<number> {
   if (positionals.length) throw new UsageError(`unexpected argument "${positionals[0]}"`);
   if (values.graphs !== undefined) {
     if (!values.task) throw new UsageError('usage: farfield sample --task ID --graphs FILE [--source ID] [--weight COLUMN] [--directed]');
-    const sample = await sampleFile(values.task, values.graphs, { source: values.source, weight: values.weight, directed: values.directed });
+    const sample = await sampleFile(taskFlag(values.task), values.graphs, { source: values.source, weight: values.weight, directed: values.directed });
     process.stdout.write(JSON.stringify(sample) + '\n');
     return 0;
   }
@@ -43,7 +63,7 @@ export async function commandSample(args: string[]): Promise<number> {
     }
     weightRange = [parts[0]!, parts[1]!];
   }
-  const sample = sampleGraphs({ task: values.task, family: values.family, nodes, count, seed, weightScale, weightRange });
+  const sample = sampleGraphs({ task: taskFlag(values.task), family: values.family, nodes, count, seed, weightScale, weightRange });
   process.stdout.write(JSON.stringify(sample) + '\n');
   return 0;
 }
