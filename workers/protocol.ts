@@ -7,7 +7,7 @@ import type { ExperimentSpec } from '../src/experiment/spec.ts';
 import type { RunPlan } from '../src/experiment/plan.ts';
 import type { RunResult } from '../src/experiment/run.ts';
 import type { BackendName, EngineInfo } from '../src/engine/backend.ts';
-import type { TrainedWeights } from '../src/experiment/saved-network.ts';
+import type { TrainedWeights } from '../src/experiment/network-weights.ts';
 
 export type ToWorker =
   | { type: 'init'; backend: BackendName; threads?: number; wasmPaths?: string | Record<string, string> }

@@ -7,7 +7,7 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { FromWorker, ToWorker } from './protocol.ts';
 import { initBackend, type EngineInfo } from '../src/engine/backend.ts';
 import { executeRun } from '../src/experiment/run.ts';
-import { encodeNetworkWeights, type TrainedWeights } from '../src/experiment/saved-network.ts';
+import { encodeNetworkWeights, type TrainedWeights } from '../src/experiment/network-weights.ts';
 import type { MessagePassingNetwork } from '../src/model/network.ts';
 import type { FeatureTransforms } from '../src/train/batch.ts';
 import type { SeedData } from '../src/experiment/datasets.ts';

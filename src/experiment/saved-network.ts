@@ -22,15 +22,11 @@ import { MessagePassingNetwork } from '../model/network.ts';
 import type { FeatureTransforms } from '../train/batch.ts';
 import { validateUntrusted } from '../share/spec-gate.ts';
 import { specHash } from './results.ts';
+import type { TrainedWeights } from './network-weights.ts';
+
+export type { TrainedWeights };
 
 export const NETWORK_FORMAT = 'farfield-network';
-
-/** What a worker hands back when asked to keep a run's trained weights. */
-export interface TrainedWeights {
-  specs: tf.io.WeightsManifestEntry[];
-  data: ArrayBuffer;
-  transforms: FeatureTransforms;
-}
 
 export interface SavedRung {
   family: string;
@@ -59,14 +55,6 @@ export interface SavedNetwork {
   /** The errors the run that trained this network recorded (JSON null where not finite). */
   recorded: { keptStep: number; inDistribution: SavedRung | null; ladder: SavedRung[] };
   weightsManifest: Array<{ paths: string[]; weights: tf.io.WeightsManifestEntry[] }>;
-}
-
-/** Encode every parameter of a trained network (the caller still owns and disposes it). */
-export async function encodeNetworkWeights(network: MessagePassingNetwork, transforms: FeatureTransforms): Promise<TrainedWeights> {
-  const named: tf.NamedTensorMap = {};
-  for (const [name, variable] of network.params.vars) named[name] = variable;
-  const { data, specs } = await tf.io.encodeWeights(named);
-  return { data, specs, transforms };
 }
 
 const rungOf = (family: string, size: number | null, scale: number, m: { mae: number; mre: number; miss: number }): SavedRung => {

@@ -26,7 +26,7 @@ import type { RunResult } from './run.ts';
 import type { EngineInfo } from '../engine/backend.ts';
 import type { FromWorker, ToWorker } from '../../workers/protocol.ts';
 import { failedResult } from './run-record.ts';
-import type { TrainedWeights } from './saved-network.ts';
+import type { TrainedWeights } from './network-weights.ts';
 
 /** The little a pool needs from a worker; each host adapts its own kind. */
 export interface PoolWorker {
