@@ -94,17 +94,31 @@ function stepLayout(N: number, E: number, H: number, extreme: boolean): StepLayo
 
 const arenas = new WeakMap<RawSimd, { pointer: number; bytes: number }>();
 
-/** A block of at least `bytes` bytes, reused across launches (kernels never overlap). */
+/** Scratch above this size is not kept between launches (scoring a very large graph would otherwise pin it). */
+const KEEP_BYTES = 32 * 1024 * 1024;
+
+/** A block of at least `bytes` bytes, reused across launches (kernels never overlap); hand it back with `release`. */
 function scratch(raw: RawSimd, bytes: number): number {
   let arena = arenas.get(raw);
   if (arena == null || arena.bytes < bytes) {
     if (arena != null) raw.free(arena.pointer);
-    const size = Math.max(bytes, Math.ceil((arena?.bytes ?? 0) * 1.5), 1 << 16);
+    const size = Math.max(bytes, Math.min(KEEP_BYTES, Math.ceil((arena?.bytes ?? 0) * 1.5)), 1 << 16);
     arena = { pointer: raw.malloc(size), bytes: size };
-    if (arena.pointer === 0) throw new Error(`engine/process: could not allocate ${size} bytes of scratch memory`);
+    if (arena.pointer === 0) {
+      arenas.delete(raw);
+      throw new Error(`engine/process: could not allocate ${size} bytes of scratch memory`);
+    }
     arenas.set(raw, arena);
   }
   return arena.pointer;
+}
+
+function release(raw: RawSimd): void {
+  const arena = arenas.get(raw);
+  if (arena != null && arena.bytes > KEEP_BYTES) {
+    raw.free(arena.pointer);
+    arenas.delete(raw);
+  }
 }
 
 /** Hand out consecutive float-sized slices of one block (byte pointers). */
@@ -216,8 +230,14 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   // Views only now, after every allocation.
   const F = new Float32Array(raw.memory.buffer);
   const I = new Int32Array(raw.memory.buffer);
-  checkIds(I, floatIndex(src), E, N, 'source');
-  checkIds(I, floatIndex(dst), E, N, 'destination');
+  try {
+    checkIds(I, floatIndex(src), E, N, 'source');
+    checkIds(I, floatIndex(dst), E, N, 'destination');
+  } catch (error) {
+    backend.disposeData(hOut.dataId);
+    if (stash != null) backend.disposeData(stash.dataId);
+    throw error;
+  }
   const counts = at.aggregator === 'mean' ? segmentCountsOf(I, floatIndex(dst), E, N) : null;
 
   const stepBase = (step: number): number => (stash != null ? raw.offset(stash) + 4 * step * layout.size : s['step']!);
@@ -265,6 +285,7 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
     raw.mmNN(p('hidden'), ptr('w2u'), s['out']!, H, N, H, b2u, false);
     raw.add(h, s['out']!, h, NH);
   }
+  release(raw);
   return stash != null ? [hOut, stash] : [hOut];
 }
 
@@ -470,6 +491,7 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     }
   }
   for (const name of names) if (!chains.has(name)) F.fill(0, fi(o(name)), fi(o(name)) + shapes[name]!.reduce((a, b) => a * b, 1));
+  release(raw);
   return outs;
 }
 

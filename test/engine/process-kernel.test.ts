@@ -162,6 +162,22 @@ describe('fused process kernels give the stock composition’s bits', () => {
     expect(fused).toBeLessThan(150);
   });
 
+  it('refuses an edge id out of range with a message and leaves no tensor behind', () => {
+    const data = instances('er', 16, [1, 10], 37);
+    const options = modelSchema.parse({ hidden: 32, aggregator: 'max', steps: { rule: 'fixed', count: 3, trainJitter: 0 } });
+    const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
+    const batch = uploadBatch(makeBatch(data, TRANSFORMS));
+    const ids = batch.dst.dataSync().slice();
+    ids[3] = batch.nodes + 5;
+    const bad = tf.tensor1d(ids, 'int32');
+    const before = tf.memory().numTensors;
+    expect(() => tf.tidy(() => network.forward({ ...batch, dst: bad }, { steps: 3 }))).toThrow(/destination id \d+ at edge 3 is out of range/);
+    expect(tf.memory().numTensors).toBe(before);
+    bad.dispose();
+    batch.dispose();
+    network.dispose();
+  });
+
   it('the fused gradient matches a central difference of the loss along a random direction', () => {
     const data = instances('er', 16, [1, 10], 17);
     const options = modelSchema.parse({ hidden: 32, aggregator: 'max', steps: { rule: 'fixed', count: 5, trainJitter: 0 } });
