@@ -86,6 +86,16 @@ export function savedNetworkJson(spec: ExperimentSpec, run: RunResult, weights: 
   };
 }
 
+/** The two files of one saved network, named after its run, ready to write or download. */
+export function savedNetworkFiles(spec: ExperimentSpec, run: RunResult, weights: TrainedWeights, engineVersion: string): { json: { name: string; text: string }; shard: { name: string; bytes: Uint8Array } } {
+  const stem = networkFileStem(run);
+  const shardName = `${stem}.bin`;
+  return {
+    json: { name: `${stem}.json`, text: JSON.stringify(savedNetworkJson(spec, run, weights, engineVersion, shardName), null, 1) + '\n' },
+    shard: { name: shardName, bytes: new Uint8Array(weights.data) },
+  };
+}
+
 /** A file-system-safe stem per run: "run3-max-seed7". */
 export function networkFileStem(run: Pick<RunResult, 'index' | 'arm' | 'seed'>): string {
   const arm = run.arm.replace(/[^A-Za-z0-9_.=+-]+/g, '_').replace(/^[._]+/, '').slice(0, 40) || 'arm';

@@ -14,7 +14,7 @@ import { ProgressLine } from '../progress.ts';
 import { renderResults } from '../format.ts';
 import { Journal, readJournal } from '../journal.ts';
 import { attachGraphFiles, graphsFlag } from '../graph-files.ts';
-import { networkFileStem, savedNetworkJson, type TrainedWeights } from '../../experiment/saved-network.ts';
+import { savedNetworkFiles, type TrainedWeights } from '../../experiment/saved-network.ts';
 import type { ExperimentSpec } from '../../experiment/spec.ts';
 
 export function parseShard(value: string | undefined): { index: number; count: number } | undefined {
@@ -36,9 +36,9 @@ function writeAtomically(path: string, text: string): void {
 
 /** Write one trained network as DIR/<stem>.json (manifest, spec, arm, seed) and DIR/<stem>.bin (the shard). */
 function saveNetwork(dir: string, spec: ExperimentSpec, result: RunResult, weights: TrainedWeights): void {
-  const stem = networkFileStem(result);
-  writeFileSync(join(dir, `${stem}.bin`), new Uint8Array(weights.data));
-  writeAtomically(join(dir, `${stem}.json`), JSON.stringify(savedNetworkJson(spec, result, weights, ENGINE_VERSION, `${stem}.bin`), null, 1) + '\n');
+  const { json, shard } = savedNetworkFiles(spec, result, weights, ENGINE_VERSION);
+  writeFileSync(join(dir, shard.name), shard.bytes);
+  writeAtomically(join(dir, json.name), json.text);
 }
 
 export async function commandRun(args: string[]): Promise<number> {
