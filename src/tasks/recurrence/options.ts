@@ -45,8 +45,8 @@ export const RECURRENCE_GLOSS: Record<RecurrenceSemiring | RecurrenceSource | Re
   'edge-weights': 'each message edge multiplies (⊗) by its edge weight; other nodes start at the semiring’s zero',
   unit: 'each message edge multiplies by 1 (hop counts, path counts, reachability); other nodes start at the zero',
   'node-weights': 'each node carries a drawn weight (like earliest-finish’s durations); edge u→v multiplies by w(v)',
-  forward: 'paths run along directed edges (from the source)',
-  backward: 'paths run against directed edges (towards the source: messages flow target → source)',
+  forward: 'paths run along directed edges (messages flow from an edge’s tail to its head)',
+  backward: 'paths run against directed edges (messages flow from an edge’s head to its tail)',
 };
 
 /** Semirings without a fixed point on a cycle (values grow without bound): refused unless what the start reaches is acyclic. */

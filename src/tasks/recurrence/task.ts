@@ -140,8 +140,8 @@ function makeTask(spec: RecurrenceSpec): Task {
   const gloss = RECURRENCE_GLOSS[spec.semiring];
   return {
     id: recurrenceLabel(spec),
-    title: `Your recurrence: ${gloss.split(':')[0]} (${spec.semiring})`,
-    describe: `${gloss}; source: ${RECURRENCE_GLOSS[spec.source]}; others: ${RECURRENCE_GLOSS[spec.others]}; ${RECURRENCE_GLOSS[spec.direction]}.`,
+    title: `Your recurrence (${spec.semiring})`,
+    describe: `${gloss}. Start: ${RECURRENCE_GLOSS[spec.source]}. Factors: ${RECURRENCE_GLOSS[spec.others]}. Direction: ${RECURRENCE_GLOSS[spec.direction]}.`,
     alignedAggregator: alignment.aggregator,
     alignedStructure: `x(v) = b(v) ⊕ ⊕ over u→v of x(u) ⊗ f(u→v), ${alignment.operations} (${spec.semiring})`,
     nodeFeatureNames: ['start'],
