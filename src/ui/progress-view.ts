@@ -4,13 +4,15 @@
  * and the clock, so the progress component only draws.
  */
 import type { RunPhase, RunSnapshot, RunTrack } from './run-controller.ts';
-import { armColor } from './palette.ts';
+import { armColor, armLetter } from './palette.ts';
 import { duration } from './format.ts';
 
 export interface RunRow {
   index: number;
   arm: string;
   armIndex: number;
+  /** The arm's letter code (A, B, …). */
+  letter: string;
   seed: number;
   seedIndex: number;
   color: string;
@@ -26,7 +28,7 @@ export interface RunRow {
 
 export interface ProgressView {
   rows: RunRow[];
-  arms: Array<{ name: string; color: string }>;
+  arms: Array<{ name: string; color: string; letter: string }>;
   seeds: number[];
   done: number;
   total: number;
@@ -66,7 +68,7 @@ function rowFor(track: RunTrack, state: RunSnapshot['state'], now: number): RunR
     }
     case 'ok':
       status = 'done';
-      detail = track.kept ? 'kept from an earlier visit' : `${track.step} steps in ${duration(track.seconds ?? NaN)}`;
+      detail = track.kept ? 'kept from an earlier visit' : track.reused ? 'reused: the edit left this run unchanged' : `${track.step} steps in ${duration(track.seconds ?? NaN)}`;
       break;
     case 'diverged':
       status = 'diverged';
@@ -85,6 +87,7 @@ function rowFor(track: RunTrack, state: RunSnapshot['state'], now: number): RunR
     index: track.plan.index,
     arm: track.plan.arm,
     armIndex: track.plan.armIndex,
+    letter: armLetter(track.plan.armIndex),
     seed: track.plan.seed,
     seedIndex: track.plan.seedIndex,
     color: armColor(track.plan.armIndex),
@@ -104,8 +107,8 @@ export function progressView(snapshot: RunSnapshot, now: number): ProgressView {
   const failed = rows.filter((r) => r.phase === 'failed').length;
   const running = rows.filter((r) => r.phase === 'running').length;
   const fraction = total ? rows.reduce((s, r) => s + r.fraction, 0) / total : 0;
-  const arms: Array<{ name: string; color: string }> = [];
-  for (const r of rows) if (!arms.some((a) => a.name === r.arm)) arms.push({ name: r.arm, color: r.color });
+  const arms: ProgressView['arms'] = [];
+  for (const r of rows) if (!arms.some((a) => a.name === r.arm)) arms.push({ name: r.arm, color: r.color, letter: r.letter });
   const seeds = [...new Set(rows.map((r) => r.seed))];
 
   // Overall ETA from the pace of this session: work done (in runs) per second so far.
@@ -115,7 +118,7 @@ export function progressView(snapshot: RunSnapshot, now: number): ProgressView {
     const end = snapshot.state === 'running' ? now : (snapshot.finishedAt ?? now);
     const seconds = (end - snapshot.startedAt) / 1000;
     elapsed = duration(seconds);
-    const sessionWork = rows.reduce((s, r) => s + (r.kept ? 0 : r.fraction), 0);
+    const sessionWork = rows.reduce((s, r) => s + (r.kept || snapshot.tracks[r.index]?.reused ? 0 : r.fraction), 0);
     const remaining = rows.reduce((s, r) => s + (1 - r.fraction), 0);
     if (snapshot.state === 'running' && sessionWork > 0.05 && seconds > 2) {
       eta = `≈ ${duration((seconds / sessionWork) * remaining)} to go`;

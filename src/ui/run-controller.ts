@@ -8,9 +8,10 @@ import type { ExperimentSpec } from '../experiment/spec.ts';
 import { planRuns, type RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
 import { specHash } from '../experiment/results.ts';
+import { renumbered, runKey } from '../experiment/run-key.ts';
 import type { ToWorker } from '../../workers/protocol.ts';
 import { runWorkerPool, type FaultKind, type PoolHandle, type PoolWorker } from './worker-pool.ts';
-import type { RunStore } from './run-store.ts';
+import { keepable, type RunStore } from './run-store.ts';
 
 export type SheetState = 'idle' | 'running' | 'done' | 'cancelled';
 export type RunPhase = 'waiting' | 'running' | 'ok' | 'diverged' | 'failed' | 'cancelled';
@@ -20,6 +21,8 @@ export interface RunTrack {
   phase: RunPhase;
   /** Read back from storage rather than run in this visit. */
   kept: boolean;
+  /** Carried over from an earlier spec of this visit whose run had the same key (see run-key.ts). */
+  reused?: boolean;
   step: number;
   totalSteps: number;
   /** Loss samples while training; the recorded loss curve once finished. */
@@ -50,6 +53,8 @@ export interface RunSnapshot {
   startedAt: number | null;
   finishedAt: number | null;
   keptCount: number;
+  /** Of the finished runs, how many were carried over from an earlier spec of this visit. */
+  reusedCount: number;
   /** False when runs can only be kept in memory (no IndexedDB). */
   persistent: boolean;
   /** A storage problem worth telling the user about. */
@@ -71,11 +76,12 @@ function trackFor(plan: RunPlan): RunTrack {
   return { plan, phase: 'waiting', kept: false, step: 0, totalSteps: 0, losses: [], startedAt: null, finishedAt: null };
 }
 
-function finishedTrack(plan: RunPlan, result: RunResult, kept: boolean, now: number | null): RunTrack {
+function finishedTrack(plan: RunPlan, result: RunResult, kept: boolean, now: number | null, reused = false): RunTrack {
   return {
     plan,
     phase: result.status,
     kept,
+    ...(reused ? { reused } : {}),
     step: result.stepsDone,
     totalSteps: Math.max(result.stepsDone, 1),
     losses: result.lossCurve.filter((x) => Number.isFinite(x)),
@@ -91,6 +97,8 @@ export class RunController {
   private spec: ExperimentSpec | null = null;
   private pool: PoolHandle | null = null;
   private loadToken = 0;
+  /** Every deterministic run finished or read back in this visit, by run key, for reuse after an edit. */
+  private readonly reusable = new Map<string, RunResult>();
   private readonly now: () => number;
 
   constructor(private readonly options: RunControllerOptions) {
@@ -105,8 +113,9 @@ export class RunController {
       startedAt: null,
       finishedAt: null,
       keptCount: 0,
+      reusedCount: 0,
       persistent: options.store.persistent,
-      storageNote: options.store.persistent ? null : 'This browser does not keep runs between visits (no IndexedDB); finished runs live until the tab closes.',
+      storageNote: options.store.persistent ? null : 'This browser does not let the page keep runs between visits (no IndexedDB): finished runs last until the tab closes.',
     };
   }
 
@@ -129,12 +138,12 @@ export class RunController {
     const token = ++this.loadToken;
     this.spec = spec;
     if (!spec) {
-      this.update({ state: 'idle', specHash: null, tracks: [], results: [], keptCount: 0, startedAt: null, finishedAt: null });
+      this.update({ state: 'idle', specHash: null, tracks: [], results: [], keptCount: 0, reusedCount: 0, startedAt: null, finishedAt: null });
       return;
     }
     const hash = specHash(spec);
     const plans = planRuns(spec);
-    this.update({ state: 'idle', specHash: hash, tracks: plans.map(trackFor), results: [], keptCount: 0, startedAt: null, finishedAt: null });
+    this.update({ state: 'idle', specHash: hash, tracks: plans.map(trackFor), results: [], keptCount: 0, reusedCount: 0, startedAt: null, finishedAt: null });
     let kept: RunResult[] = [];
     try {
       kept = await this.options.store.load(hash);
@@ -143,15 +152,26 @@ export class RunController {
     }
     if (token !== this.loadToken) return;
     const byIndex = new Map(kept.filter((r) => r.index < plans.length && plans[r.index]!.arm === r.arm && plans[r.index]!.seed === r.seed).map((r) => [r.index, r]));
+    for (const r of byIndex.values()) this.reusable.set(runKey(spec, plans[r.index]!), r);
+    // Runs this visit already has under another spec, with the same key: carried over, and kept under this spec too.
+    const reused = new Map<number, RunResult>();
+    for (const plan of plans) {
+      const earlier = byIndex.has(plan.index) ? undefined : this.reusable.get(runKey(spec, plan));
+      if (earlier) reused.set(plan.index, renumbered(earlier, plan));
+    }
+    for (const r of reused.values()) this.options.store.save(hash, r).catch(() => undefined);
     const tracks = plans.map((plan) => {
       const result = byIndex.get(plan.index);
-      return result ? finishedTrack(plan, result, true, null) : trackFor(plan);
+      if (result) return finishedTrack(plan, result, true, null);
+      const carried = reused.get(plan.index);
+      return carried ? finishedTrack(plan, carried, false, null, true) : trackFor(plan);
     });
-    const results = [...byIndex.values()].sort((a, b) => a.index - b.index);
+    const results = [...byIndex.values(), ...reused.values()].sort((a, b) => a.index - b.index);
     this.update({
       tracks,
       results,
-      keptCount: results.length,
+      keptCount: byIndex.size,
+      reusedCount: reused.size,
       state: results.length === plans.length ? 'done' : 'idle',
     });
   }
@@ -210,6 +230,7 @@ export class RunController {
             results: [...this.snapshot.results.filter((r) => r.index !== result.index), result].sort((a, b) => a.index - b.index),
             tracks: this.snapshot.tracks.map((t) => (t.plan.index === result.index ? finishedTrack(plan, result, false, this.now()) : t)),
           });
+          if (keepable(result)) this.reusable.set(runKey(spec, plan), result);
           this.options.store.save(hash, result).catch((error: unknown) => {
             this.update({ storageNote: `Could not keep run ${result.index}: ${error instanceof Error ? error.message : String(error)}` });
           });
@@ -223,6 +244,20 @@ export class RunController {
       const complete = this.snapshot.results.length === this.snapshot.tracks.length;
       this.update({ state: complete ? 'done' : 'idle', finishedAt: this.now() });
     });
+  }
+
+  /**
+   * Run every run of the spec again from scratch, in this visit (the kept
+   * and reused results are dropped first): the same spec gives the same
+   * numbers, so this reproduces the fingerprint.
+   */
+  async again(workers: number): Promise<void> {
+    const hash = this.snapshot.specHash;
+    if (!hash || this.pool) return;
+    await this.options.store.forget(hash);
+    if (this.pool || this.snapshot.specHash !== hash) return;
+    this.update({ results: [], keptCount: 0, reusedCount: 0, tracks: this.snapshot.tracks.map((t) => trackFor(t.plan)) });
+    this.start(workers);
   }
 
   /** Stop now: every worker is terminated; finished runs stay, runs in flight are dropped. */

@@ -401,6 +401,7 @@ describe('progress', () => {
         startedAt: 0,
         finishedAt: null,
         keptCount: 0,
+        reusedCount: 0,
         persistent: true,
         storageNote: null,
       },
