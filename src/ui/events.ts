@@ -15,6 +15,8 @@ export interface SheetEventDetails {
   'ff-dismiss': null;
   'ff-run': null;
   'ff-cancel': null;
+  'ff-again': null;
+  'ff-show-problems': null;
   'ff-forget': null;
   'ff-workers': { count: number };
   'ff-copy-link': null;
@@ -34,6 +36,8 @@ declare global {
     'ff-dismiss': CustomEvent<null>;
     'ff-run': CustomEvent<null>;
     'ff-cancel': CustomEvent<null>;
+    'ff-again': CustomEvent<null>;
+    'ff-show-problems': CustomEvent<null>;
     'ff-forget': CustomEvent<null>;
     'ff-workers': CustomEvent<{ count: number }>;
     'ff-copy-link': CustomEvent<null>;

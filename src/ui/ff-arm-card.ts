@@ -84,7 +84,7 @@ export class FfArmCard extends LitElement {
       }
       dl {
         display: grid;
-        grid-template-columns: 7.3em 1fr;
+        grid-template-columns: 7.3em minmax(0, 1fr);
         gap: 0.3em 0.6em;
         margin: 0;
         align-items: start;
@@ -125,6 +125,8 @@ export class FfArmCard extends LitElement {
         font-size: 0.85em;
         color: var(--muted);
         display: inline-flex;
+        flex-wrap: wrap;
+        max-width: 100%;
         gap: 0.3em;
         align-items: center;
       }

@@ -31,7 +31,8 @@ export class FfArms extends LitElement {
       }
       ff-arm-card {
         flex: 1 1 22em;
-        min-width: 19em;
+        /* Never wider than the page: one card per line on a phone. */
+        min-width: min(19em, 100%);
         max-width: 36em;
       }
       .add {

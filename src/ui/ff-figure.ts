@@ -38,6 +38,25 @@ export class FfFigure extends LitElement {
     this.figure = null;
   }
 
+  protected override willUpdate(changed: Map<string, unknown>): void {
+    if (changed.has('figure') || changed.has('heading')) this.describe();
+  }
+
+  /**
+   * One image with one name for assistive technology: the chart's SVG gets
+   * role="img" and the figure's title; Observable Plot's aria-labels on its
+   * mark groups ("line", "rect"), which ARIA forbids on elements without a
+   * role, are dropped (the caption and tables carry the numbers in words).
+   */
+  private describe(): void {
+    const svg = this.svg();
+    if (!svg) return;
+    for (const el of svg.querySelectorAll('[aria-label]')) if (!el.hasAttribute('role')) el.removeAttribute('aria-label');
+    for (const el of svg.querySelectorAll('[aria-description]')) el.removeAttribute('aria-description');
+    svg.setAttribute('role', 'img');
+    svg.setAttribute('aria-label', `Fig. ${this.number}: ${this.heading}`);
+  }
+
   private svg(): SVGSVGElement | null {
     const f = this.figure;
     if (!f) return null;

@@ -3,15 +3,22 @@ import { LitElement, css, html, nothing } from 'lit';
 import type { ProgressView, RunRow } from './progress-view.ts';
 import type { SheetState } from './run-controller.ts';
 import { controls } from './styles.ts';
+import { WidthTracker } from './width-tracker.ts';
 import './ff-sparkline.ts';
+
+/** Below this width per arm column (px), runs are listed seed by seed instead of in a seeds × arms grid. */
+const MIN_COLUMN_PX = 170;
 
 export class FfProgress extends LitElement {
   static override properties = {
     view: { attribute: false },
     state: {},
+    width: { state: true },
   };
   declare view: ProgressView | null;
   declare state: SheetState;
+  declare width: number;
+  private readonly widthTracker = new WidthTracker(this);
 
   static override styles = [
     controls,
@@ -54,14 +61,19 @@ export class FfProgress extends LitElement {
         display: grid;
         gap: 0.35em 0.8em;
         align-items: stretch;
-        overflow-x: auto;
+      }
+      .key {
+        margin: 0.5em 0 0;
+        font-size: 0.85em;
+        display: flex;
+        flex-wrap: wrap;
+        gap: 0.2em 1em;
       }
       .colhead {
         font-weight: 700;
         font-size: 0.9em;
         padding-bottom: 0.1em;
         border-bottom: 3px solid var(--arm);
-        color: var(--arm);
         white-space: nowrap;
         overflow: hidden;
         text-overflow: ellipsis;
@@ -71,6 +83,19 @@ export class FfProgress extends LitElement {
         color: var(--muted);
         align-self: center;
         white-space: nowrap;
+      }
+      /* Narrow: one line per seed, its runs wrapping beneath; each cell names its arm. */
+      .grid.list {
+        grid-template-columns: repeat(auto-fill, minmax(10.5em, 1fr));
+      }
+      .grid.list .rowhead {
+        grid-column: 1 / -1;
+        margin-top: 0.3em;
+      }
+      .who {
+        font-weight: 700;
+        border-bottom: 3px solid var(--arm);
+        margin-right: 0.3em;
       }
       .cell {
         display: grid;
@@ -83,8 +108,11 @@ export class FfProgress extends LitElement {
         border: 1px solid transparent;
         min-width: 0;
       }
+      .grid.list .cell {
+        grid-template-columns: 4.5em 1fr;
+      }
       .cell ff-sparkline {
-        width: 7.5em;
+        width: 100%;
         height: 1.8em;
         color: var(--arm);
       }
@@ -118,9 +146,19 @@ export class FfProgress extends LitElement {
         white-space: normal;
         color: var(--ink);
       }
+      /* Not started: a dashed outline and muted words (not transparency, which would fail text contrast). */
       .cell[data-phase='waiting'],
       .cell[data-phase='cancelled'] {
-        opacity: 0.6;
+        background: transparent;
+        border: 1px dashed var(--rule);
+      }
+      .cell[data-phase='waiting'] .status,
+      .cell[data-phase='cancelled'] .status {
+        color: var(--muted);
+      }
+      .cell[data-phase='waiting'] ff-sparkline,
+      .cell[data-phase='cancelled'] ff-sparkline {
+        opacity: 0.5;
       }
       .cell[data-phase='ok'] .status {
         color: var(--ok);
@@ -132,9 +170,10 @@ export class FfProgress extends LitElement {
     super();
     this.view = null;
     this.state = 'idle';
+    this.width = 0;
   }
 
-  private cell(row: RunRow | undefined) {
+  private cell(row: RunRow | undefined, list: boolean) {
     if (!row) return html`<div></div>`;
     return html`<div
       class="cell"
@@ -146,7 +185,7 @@ export class FfProgress extends LitElement {
     >
       <ff-sparkline .values=${row.losses} color=${row.color} label=${`training loss of ${row.arm}, seed ${row.seed}`}></ff-sparkline>
       <div>
-        <div class="status">${row.status}</div>
+        <div class="status">${list ? html`<span class="who">${row.letter}</span>` : nothing}${row.status}</div>
         <div class="detail" data-reason>${row.detail}</div>
       </div>
     </div>`;
@@ -163,7 +202,9 @@ export class FfProgress extends LitElement {
       </p>`;
     }
     const percent = Math.round(v.fraction * 100);
-    const columns = `auto repeat(${v.arms.length}, minmax(15em, 1fr))`;
+    // The grid needs room for every arm's column; otherwise list seed by seed (no sideways scrolling).
+    const list = this.width > 0 && this.width < 90 + v.arms.length * MIN_COLUMN_PX;
+    const columns = list ? '' : `auto repeat(${v.arms.length}, minmax(0, 1fr))`;
     return html`<div class="overall">
         <div class="summary" aria-live="polite" data-summary>${v.summary}</div>
         <div class="meter" role="progressbar" aria-label="Overall progress" aria-valuemin="0" aria-valuemax="100" aria-valuenow=${percent}>
@@ -171,14 +212,20 @@ export class FfProgress extends LitElement {
         </div>
         <div class="eta">${v.elapsed ? `${v.elapsed} elapsed` : nothing}${v.eta ? ` · ${v.eta}` : nothing}</div>
       </div>
-      <div class="grid" style=${`grid-template-columns: ${columns}`} role="group" aria-label="Runs: seeds down, arms across">
-        <div></div>
-        ${v.arms.map((a) => html`<div class="colhead" style=${`--arm: ${a.color}`}>${a.name}</div>`)}
+      <div
+        class=${list ? 'grid list' : 'grid'}
+        style=${columns ? `grid-template-columns: ${columns}` : nothing}
+        role="group"
+        aria-label=${list ? 'Runs, seed by seed; each run names its arm by letter' : 'Runs: seeds down, arms across'}
+      >
+        ${list ? nothing : html`<div></div>`}
+        ${list ? nothing : v.arms.map((a) => html`<div class="colhead" style=${`--arm: ${a.color}`}>${a.letter} · ${a.name}</div>`)}
         ${v.seeds.map(
           (seed) => html`<div class="rowhead">seed ${seed}</div>
-            ${v.arms.map((a) => this.cell(v.rows.find((r) => r.seed === seed && r.arm === a.name)))}`,
+            ${v.arms.map((a) => this.cell(v.rows.find((r) => r.seed === seed && r.arm === a.name), list))}`,
         )}
-      </div>`;
+      </div>
+      ${list ? html`<p class="key" data-key>${v.arms.map((a) => html`<span style=${`--arm: ${a.color}`}><span class="who">${a.letter}</span>${a.name}</span> `)}</p>` : nothing}`;
   }
 }
 

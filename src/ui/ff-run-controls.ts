@@ -1,146 +1,196 @@
-/** <ff-run-controls>: run, cancel, how many workers, and why the sheet cannot run yet. */
+/**
+ * <ff-run-controls>: the run bar. It sits at the top of the sheet and stays
+ * in view while the reader scrolls (sticky), so Run is never far away: how
+ * many runs, about how long, Run / Cancel, progress while running, and Run
+ * again afterwards. It also offers the other half of the quick-demo / full
+ * experiment pair. Workers, engine and kept runs live in <ff-run-options>.
+ */
 import { LitElement, css, html, nothing } from 'lit';
-import type { SheetState, EngineSummary } from './run-controller.ts';
+import type { SheetState } from './run-controller.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
 
+/** The other preset of the quick-demo / full pair, when one of them is on the sheet. */
+export interface PresetSwitch {
+  id: string;
+  label: string;
+}
+
+/** What the bar shows; every count comes from the sheet's run snapshot. */
+export interface RunBarView {
+  state: SheetState;
+  ready: boolean;
+  total: number;
+  /** Runs still to do (a failed run counts as not done). */
+  missing: number;
+  /** Finished runs carried over: kept from an earlier visit, or reused after an edit. */
+  carried: number;
+  arms: number;
+  seeds: number;
+  problems: number;
+  /** "≈ 40 s on 2 workers" before a run; empty when nothing is left to run. */
+  estimate: string;
+  done: number;
+  fraction: number;
+  /** "12 s elapsed · ≈ 8 s to go" while running, "done in 35 s" after. */
+  timing: string;
+  switchTo: PresetSwitch | null;
+}
+
+const EMPTY: RunBarView = {
+  state: 'idle',
+  ready: false,
+  total: 0,
+  missing: 0,
+  carried: 0,
+  arms: 0,
+  seeds: 0,
+  problems: 0,
+  estimate: '',
+  done: 0,
+  fraction: 0,
+  timing: '',
+  switchTo: null,
+};
+
+function plural(n: number, word: string): string {
+  return `${n} ${word}${n === 1 ? '' : 's'}`;
+}
+
 export class FfRunControls extends LitElement {
   static override properties = {
-    state: {},
-    problems: { attribute: false },
-    total: { type: Number },
-    missing: { type: Number },
-    kept: { type: Number },
-    workers: { type: Number },
-    maxWorkers: { type: Number },
-    engine: { attribute: false },
-    storageNote: {},
-    ready: { type: Boolean },
+    view: { attribute: false },
   };
-  declare state: SheetState;
-  declare problems: string[];
-  declare total: number;
-  declare missing: number;
-  declare kept: number;
-  declare workers: number;
-  declare maxWorkers: number;
-  declare engine: EngineSummary | null;
-  declare storageNote: string | null;
-  declare ready: boolean;
+  declare view: RunBarView;
 
   static override styles = [
     controls,
     css`
       :host {
         display: block;
+        position: sticky;
+        top: 0;
+        z-index: 5;
+        background: var(--paper);
+        border-bottom: 1px solid var(--rule);
+        box-shadow: 0 6px 10px -10px rgba(28, 33, 48, 0.5);
       }
       .bar {
         display: flex;
         flex-wrap: wrap;
         align-items: center;
-        gap: 0.7em 1em;
+        gap: 0.4em 0.8em;
+        padding: 0.5em 0;
       }
       button.primary {
-        font-size: 1.1em;
-        padding: 0.45em 1.3em;
+        padding: 0.35em 1.1em;
       }
-      label {
-        display: inline-flex;
-        gap: 0.4em;
-        align-items: center;
+      .what {
+        flex: 1 1 14em;
+        min-width: 0;
         font-size: 0.92em;
       }
-      .note {
+      .what .plan {
+        font-weight: 600;
+      }
+      .muted {
         color: var(--muted);
+      }
+      .meter {
+        display: block;
+        height: 0.45em;
+        margin-top: 0.25em;
+        background: var(--paper-deep);
+        border: 1px solid var(--rule);
+        border-radius: 99px;
+        overflow: hidden;
+      }
+      .meter > span {
+        display: block;
+        height: 100%;
+        background: var(--teal);
+      }
+      button.link {
+        border: none;
+        padding: 0;
+        min-height: 0;
+        background: none;
+        text-decoration: underline;
+        color: var(--teal-deep);
         font-size: 0.92em;
       }
-      .problems {
-        margin: 0.8em 0 0;
-        border-left: 4px solid var(--danger);
-        padding: 0.3em 0.8em;
-        background: var(--danger-soft);
-        border-radius: 0 4px 4px 0;
-      }
-      .problems ul {
-        margin: 0.2em 0;
-        padding-left: 1.1em;
-        font-family: var(--mono);
-        font-size: 0.85em;
-      }
-      .storage {
-        margin: 0.5em 0 0;
-        font-size: 0.88em;
-        color: var(--ochre);
+      .fix {
+        color: var(--danger);
       }
     `,
   ];
 
   constructor() {
     super();
-    this.state = 'idle';
-    this.problems = [];
-    this.total = 0;
-    this.missing = 0;
-    this.kept = 0;
-    this.workers = 1;
-    this.maxWorkers = 1;
-    this.engine = null;
-    this.storageNote = null;
-    this.ready = false;
+    this.view = EMPTY;
   }
 
-  private label(): string {
-    if (this.state === 'running') return 'Running…';
-    if (this.total === 0) return 'Run';
-    if (this.missing === 0) return `All ${this.total} runs done`;
-    if (this.missing === this.total) return `Run ${this.total} run${this.total === 1 ? '' : 's'}`;
-    return `Run the ${this.missing} missing run${this.missing === 1 ? '' : 's'}`;
+  /** Focus the Run button (the skip link's target). */
+  focusRun(): void {
+    this.renderRoot.querySelector<HTMLButtonElement>('button[data-action]')?.focus();
+  }
+
+  private label(v: RunBarView): string {
+    if (v.state === 'running') return 'Running…';
+    if (v.total === 0) return '▶ Run';
+    if (v.missing === 0) return '↻ Run again';
+    if (v.missing === v.total) return `▶ Run ${plural(v.total, 'run')}`;
+    return `▶ Run the ${v.missing} missing run${v.missing === 1 ? '' : 's'}`;
+  }
+
+  private summary(v: RunBarView) {
+    const plan = html`<span class="plan" data-planned=${v.total}>${plural(v.total, 'run')}</span>
+      <span class="muted">(${plural(v.arms, 'arm')} × ${plural(v.seeds, 'seed')})</span>`;
+    if (v.problems > 0) {
+      return html`${plan} ·
+        <button type="button" class="link fix" data-action="show-problems" @click=${() => emit(this, 'ff-show-problems', null)}>
+          fix ${plural(v.problems, 'problem')} first
+        </button>`;
+    }
+    if (v.state === 'running') {
+      const percent = Math.round(v.fraction * 100);
+      return html`${v.done} of ${plural(v.total, 'run')} done <span class="muted" data-timing>${v.timing}</span>
+        <span class="meter" role="progressbar" aria-label="Progress of all runs" aria-valuemin="0" aria-valuemax="100" aria-valuenow=${percent}
+          ><span style=${`width: ${percent}%`}></span
+        ></span>`;
+    }
+    if (v.missing === 0 && v.total > 0) {
+      return html`${plan} · all done <span class="muted" data-timing>${v.timing}</span>
+        ${v.carried > 0 ? html`<span class="muted">· ${v.carried} carried over</span>` : nothing}
+        <span class="muted">· Run again runs every one afresh.</span>`;
+    }
+    return html`${plan}${v.carried > 0 ? html` <span class="muted">· ${v.carried} already done</span>` : nothing}
+      ${v.estimate ? html`· <span data-estimate>${v.estimate}</span>` : nothing}`;
   }
 
   override render() {
-    const running = this.state === 'running';
-    const blocked = this.problems.length > 0;
-    return html`<div class="bar">
-        <button
-          type="button"
-          class="primary"
-          data-action="run"
-          ?disabled=${!this.ready || running || blocked || this.missing === 0}
-          @click=${() => emit(this, 'ff-run', null)}
-        >
-          ${running ? nothing : '▶ '}${this.label()}
-        </button>
-        <button type="button" data-action="cancel" ?disabled=${!running} @click=${() => emit(this, 'ff-cancel', null)}>■ Cancel</button>
-        <label
-          >on
-          <select
-            aria-label="Workers (runs at a time)"
-            ?disabled=${running}
-            @change=${(e: Event) => emit(this, 'ff-workers', { count: Number((e.target as HTMLSelectElement).value) })}
-          >
-            ${Array.from({ length: this.maxWorkers }, (_, i) => i + 1).map((n) => html`<option value=${n} ?selected=${n === this.workers}>${n}</option>`)}
-          </select>
-          worker${this.workers === 1 ? '' : 's'}</label
-        >
-        <span class="note">
-          ${this.kept > 0 ? html`<span data-kept=${this.kept}>${this.kept} run${this.kept === 1 ? '' : 's'} kept from an earlier visit.</span>` : nothing}
-          ${this.engine
-            ? html`<span data-engine-simd=${this.engine.simd ? 'on' : 'off'}>Engine: tfjs ${this.engine.backend.toUpperCase()}, ${this.engine.threads} thread${this.engine.threads === 1 ? '' : 's'} per worker${this.engine.backend === 'wasm' ? (this.engine.simd ? ', SIMD kernels' : ', stock kernels (slower, same numbers)') : ''}.</span>`
-            : 'Engine: tfjs WASM in web workers, no GPU needed.'}
-        </span>
-        ${this.kept > 0 && !running
-          ? html`<button type="button" class="quiet" data-action="forget" @click=${() => emit(this, 'ff-forget', null)}>Forget kept runs</button>`
-          : nothing}
-      </div>
-      ${blocked
-        ? html`<div class="problems" role="status">
-            <strong>Fix before running:</strong>
-            <ul>
-              ${this.problems.map((p) => html`<li>${p}</li>`)}
-            </ul>
-          </div>`
+    const v = this.view;
+    const running = v.state === 'running';
+    const again = !running && v.total > 0 && v.missing === 0;
+    return html`<div class="bar" role="region" aria-label="Run">
+      <button
+        type="button"
+        class="primary"
+        data-action="run"
+        data-mode=${again ? 'again' : 'run'}
+        ?disabled=${!v.ready || running || v.problems > 0 || v.total === 0}
+        @click=${() => emit(this, again ? 'ff-again' : 'ff-run', null)}
+      >
+        ${this.label(v)}
+      </button>
+      <button type="button" data-action="cancel" ?disabled=${!running} @click=${() => emit(this, 'ff-cancel', null)}>■ Cancel</button>
+      <div class="what" aria-live="polite">${this.summary(v)}</div>
+      ${v.switchTo
+        ? html`<button type="button" class="link" data-action="switch-preset" ?disabled=${running} @click=${() => emit(this, 'ff-preset', { id: v.switchTo!.id })}>
+            ${v.switchTo.label}
+          </button>`
         : nothing}
-      ${this.storageNote ? html`<p class="storage">${this.storageNote}</p>` : nothing}`;
+    </div>`;
   }
 }
 

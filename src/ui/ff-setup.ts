@@ -36,7 +36,7 @@ export class FfSetup extends LitElement {
       }
       .rows {
         display: grid;
-        grid-template-columns: 7.5em 1fr;
+        grid-template-columns: 7.5em minmax(0, 1fr);
         gap: 0.75em 1em;
         align-items: baseline;
       }
@@ -54,6 +54,7 @@ export class FfSetup extends LitElement {
       select {
         min-height: 1.75em;
         padding-block: 0.1em;
+        max-width: 100%;
       }
       input[type='number'] {
         width: 4.4em;
@@ -82,7 +83,7 @@ export class FfSetup extends LitElement {
       }
       @media (max-width: 640px) {
         .rows {
-          grid-template-columns: 1fr;
+          grid-template-columns: minmax(0, 1fr);
         }
         .term {
           text-align: left;

@@ -20,6 +20,11 @@ import './ff-question.ts';
 import './ff-setup.ts';
 import './ff-arms.ts';
 import './ff-run-controls.ts';
+import './ff-run-options.ts';
+import type { FfRunControls, RunBarView, PresetSwitch } from './ff-run-controls.ts';
+import type { FfRunOptions } from './ff-run-options.ts';
+import { DEFAULT_PRESET, FULL_PRESET } from './presets.ts';
+import { duration } from './format.ts';
 import './ff-progress.ts';
 import './ff-evidence.ts';
 import './ff-share.ts';
@@ -27,6 +32,14 @@ import './ff-share.ts';
 const TASKS = taskCatalogue();
 const FAMILIES = familyCatalogue();
 const NO_PROBLEMS: string[] = [];
+
+/** The quick demo offers the full experiment and back, by name and rough length. */
+function presetSwitch(m: SheetModel): PresetSwitch | null {
+  if (m.source.kind !== 'preset' || m.edited) return null;
+  if (m.source.id === DEFAULT_PRESET) return { id: FULL_PRESET, label: 'Open the full experiment (a few minutes)' };
+  if (m.source.id === FULL_PRESET) return { id: DEFAULT_PRESET, label: 'Back to the quick demo (about half a minute)' };
+  return null;
+}
 
 function sourceLabel(m: SheetModel): string {
   const edited = m.edited ? ' · edited' : '';
@@ -79,6 +92,11 @@ export class FfSheet extends LitElement {
         display: flex;
         flex-direction: column;
       }
+      @media (max-width: 640px) {
+        .page {
+          padding: 0 0.8em 2em;
+        }
+      }
       section.part {
         padding: 1.3em 0 1.4em;
         border-bottom: 1px solid var(--rule);
@@ -107,6 +125,37 @@ export class FfSheet extends LitElement {
       }
       footer {
         order: 7;
+      }
+      .skip {
+        position: absolute;
+        left: 0.5em;
+        top: 0.5em;
+        z-index: 10;
+        display: flex;
+        gap: 0.5em;
+      }
+      .skip button {
+        position: absolute;
+        width: 1px;
+        height: 1px;
+        overflow: hidden;
+        clip-path: inset(50%);
+        white-space: nowrap;
+        border: 0;
+        padding: 0;
+      }
+      .skip button:focus {
+        position: static;
+        width: auto;
+        height: auto;
+        clip-path: none;
+        padding: 0.3em 0.8em;
+        background: var(--ink);
+        color: var(--paper);
+        border-radius: 3px;
+      }
+      .section-head {
+        scroll-margin-top: 4.5em;
       }
       :host([presenter]) .evidence {
         order: 2;
@@ -158,6 +207,16 @@ export class FfSheet extends LitElement {
     this.dataset.ready = m.ready ? 'yes' : 'no';
   }
 
+  private skipToRun(): void {
+    this.renderRoot.querySelector<FfRunControls>('ff-run-controls')?.focusRun();
+  }
+
+  private skipToEvidence(): void {
+    const head = this.renderRoot.querySelector<HTMLElement>('#h-evidence');
+    head?.scrollIntoView({ block: 'start' });
+    head?.focus();
+  }
+
   override render() {
     const c = this.controller;
     const m = c.model;
@@ -182,8 +241,37 @@ export class FfSheet extends LitElement {
       @ff-presenter=${() => c.togglePresenter()}
     ></ff-masthead>`;
 
+    const est = c.estimate();
+    const bar: RunBarView = {
+      state: m.run.state,
+      ready: m.ready,
+      total: m.run.tracks.length,
+      missing,
+      carried: m.run.keptCount + m.run.reusedCount,
+      arms: progress.arms.length,
+      seeds: progress.seeds.length,
+      problems: problems.length,
+      estimate: est && est.runs > 0 ? `≈ ${duration(est.wallSeconds)} on ${m.workers} worker${m.workers === 1 ? '' : 's'}` : '',
+      done: progress.done,
+      fraction: progress.fraction,
+      timing: m.run.state === 'running' ? [progress.elapsed && `${progress.elapsed} elapsed`, progress.eta].filter(Boolean).join(' · ') : progress.elapsed ? `in ${progress.elapsed}` : '',
+      switchTo: presetSwitch(m),
+    };
+
     return html`<div class="page" @ff-edit=${(e: CustomEvent) => c.edit(e.detail)}>
+      <div class="skip" role="navigation" aria-label="Skip links">
+        <button type="button" data-skip="run" @click=${() => this.skipToRun()}>Skip to Run</button>
+        <button type="button" data-skip="evidence" @click=${() => this.skipToEvidence()}>Skip to the evidence</button>
+      </div>
       ${masthead}
+      <ff-run-controls
+        .view=${bar}
+        @ff-run=${() => c.run()}
+        @ff-again=${() => c.runAgain()}
+        @ff-cancel=${() => c.cancel()}
+        @ff-preset=${(e: CustomEvent<{ id: string }>) => c.choosePreset(e.detail.id)}
+        @ff-show-problems=${() => this.renderRoot.querySelector<FfRunOptions>('ff-run-options')?.showProblems()}
+      ></ff-run-controls>
       <ff-notice .notice=${m.notice} @ff-dismiss=${() => c.dismissNotice()}></ff-notice>
       ${m.faults.size || m.loadFault
         ? html`<p class="banner test-mode" data-fault-banner>
@@ -220,27 +308,23 @@ export class FfSheet extends LitElement {
 
       <section class="part run" aria-labelledby="h-run">
         <h2 class="section-head" id="h-run"><span class="mark">§3</span> Run <span class="aside">in web workers on this machine; nothing leaves the page.</span></h2>
-        <ff-run-controls
+        <ff-run-options
           state=${m.run.state}
           .problems=${problems}
-          .total=${m.run.tracks.length}
-          .missing=${missing}
           .kept=${m.run.keptCount}
+          .reused=${m.run.reusedCount}
           .workers=${m.workers}
           .maxWorkers=${m.maxWorkers}
           .engine=${m.run.engine}
           .storageNote=${m.run.storageNote}
-          ?ready=${m.ready}
-          @ff-run=${() => c.run()}
-          @ff-cancel=${() => c.cancel()}
           @ff-forget=${() => void c.forgetKept()}
           @ff-workers=${(e: CustomEvent<{ count: number }>) => c.setWorkers(e.detail.count)}
-        ></ff-run-controls>
+        ></ff-run-options>
         <ff-progress .view=${progress} state=${m.run.state}></ff-progress>
       </section>
 
       <section class="part evidence" aria-labelledby="h-evidence">
-        <h2 class="section-head" id="h-evidence"><span class="mark">§4</span> Evidence</h2>
+        <h2 class="section-head" id="h-evidence" tabindex="-1"><span class="mark">§4</span> Evidence</h2>
         <ff-evidence
           id="results"
           data-fingerprint=${fp || nothing}
@@ -265,8 +349,10 @@ export class FfSheet extends LitElement {
         ></ff-share>
       </section>
       <footer>
-        Farfield runs every experiment in this browser on the tfjs WASM backend — the same engine, the same numbers as <code>npx farfield run</code>. Finished runs are kept
-        in this browser (IndexedDB) until you forget them.
+        Farfield runs every experiment in this browser on the tfjs WASM backend — the same engine, the same numbers as <code>npx farfield run</code>.
+        ${m.run.persistent
+          ? 'Finished runs are kept in this browser (IndexedDB) until you forget them.'
+          : 'This browser does not let the page keep runs between visits: finished runs last until the tab closes.'}
       </footer>
     </div>`;
   }

@@ -12,6 +12,7 @@ import type { AdjustmentView, ArmKey, CaveatNote, FailureNote, RankingRow, Verdi
 import { blownUpLabel } from './evidence.ts';
 import { num, percent, pValue } from './format.ts';
 import { controls } from './styles.ts';
+import { armLetter } from './palette.ts';
 
 export class FfVerdictTable extends LitElement {
   static override properties = {
@@ -41,6 +42,14 @@ export class FfVerdictTable extends LitElement {
     css`
       :host {
         display: block;
+        container-type: inline-size;
+      }
+      .arm {
+        white-space: nowrap;
+      }
+      .arm b {
+        border-bottom: 3px solid var(--arm);
+        margin-right: 0.2em;
       }
       .wrap {
         overflow-x: auto;
@@ -193,6 +202,51 @@ export class FfVerdictTable extends LitElement {
         color: var(--muted);
         padding: 0.4em 0.9em 0.6em;
       }
+      /* Narrow: one card per rung, each value under its own heading (no sideways scrolling). */
+      @container (max-width: 46em) {
+        table.verdicts,
+        table.verdicts tbody,
+        table.verdicts tr,
+        table.verdicts td {
+          display: block;
+        }
+        table.verdicts caption {
+          display: block;
+        }
+        table.verdicts thead {
+          position: absolute;
+          width: 1px;
+          height: 1px;
+          overflow: hidden;
+          clip-path: inset(50%);
+        }
+        table.verdicts tr {
+          border-top: 2px solid var(--rule);
+          padding: 0.4em 0.2em;
+        }
+        table.verdicts td {
+          display: grid;
+          grid-template-columns: minmax(6.5em, 38%) minmax(0, 1fr);
+          gap: 0 0.6em;
+          text-align: left;
+          white-space: normal;
+          border-bottom: none;
+          padding: 0.15em 0.7em;
+          min-width: 0;
+        }
+        table.verdicts td::before {
+          content: attr(data-label);
+          color: var(--muted);
+          font-size: 0.85em;
+          font-weight: 600;
+        }
+        table.verdicts td.verdict {
+          min-width: 0;
+        }
+        .ranking td {
+          white-space: normal;
+        }
+      }
     `,
   ];
 
@@ -208,8 +262,11 @@ export class FfVerdictTable extends LitElement {
     this.metric = 'mae';
   }
 
-  private colorOf(name: string): string {
-    return this.arms.find((a) => a.name === name)?.color ?? 'inherit';
+  /** An arm as its letter code (underlined in its colour) and its name. */
+  private tag(name: string) {
+    const key = this.arms.find((a) => a.name === name);
+    if (!key) return name;
+    return html`<span class="arm" style=${`--arm: ${key.color}`}><b>${armLetter(key.index)}</b>${name}</span>`;
   }
 
   private ranking() {
@@ -231,7 +288,7 @@ export class FfVerdictTable extends LitElement {
               <td class="l num">n = ${r.size}${r.scale !== 1 ? html`, ×${r.scale}` : nothing}</td>
               <td class="l order">
                 ${r.order.map(
-                  (o, i) => html`${i > 0 ? html`<span class="lt"> &lt; </span>` : nothing}<span style=${`color: ${o.color}`}>${o.arm}</span>
+                  (o, i) => html`${i > 0 ? html`<span class="lt"> &lt; </span>` : nothing}${this.tag(o.arm)}
                     <span class="ci">${o.n ? num(o.mean) : nothing}${o.blownUp ? html` <span class="blew-inline">(${blownUpLabel(o.blownUp)})</span>` : nothing}</span>`,
                 )}
               </td>
@@ -260,11 +317,7 @@ export class FfVerdictTable extends LitElement {
 
   private verdictCell(v: VerdictRow) {
     const mark = v.kind === 'not-fitted' || v.kind === 'no-skill' ? '⚠' : v.kind === 'not-tested' ? '○' : '';
-    return html`<td
-      class="l verdict"
-      data-kind=${v.kind}
-      style=${v.kind === 'a-better' ? `color: ${this.colorOf(v.a)}` : v.kind === 'b-better' ? `color: ${this.colorOf(v.b)}` : ''}
-    >
+    return html`<td class="l verdict" data-kind=${v.kind} data-label="Verdict">
       ${mark ? html`<span class="mark" aria-hidden="true">${mark}</span>` : nothing}${v.text}
     </td>`;
   }
@@ -274,7 +327,7 @@ export class FfVerdictTable extends LitElement {
     const adjusted = this.adjustment?.header ?? 'p (adjusted)';
     const blownAnywhere = this.verdicts.some((v) => v.blownUpA || v.blownUpB);
     return html`${this.ranking()}<div class="wrap">
-        <table>
+        <table class="verdicts">
           <caption>
             Verdicts per rung of the ladder
           </caption>
@@ -283,11 +336,11 @@ export class FfVerdictTable extends LitElement {
               <th class="l" scope="col">Test size</th>
               <th class="l" scope="col">What shifted</th>
               <th scope="col">best constant</th>
-              <th class="l" scope="col">Arms A vs B</th>
-              <th scope="col">${this.metric} of A</th>
-              <th scope="col">${this.metric} of B</th>
-              <th scope="col">A − B [95% interval]</th>
-              <th scope="col">P(A &lt; B)</th>
+              <th class="l" scope="col">Pair: 1st vs 2nd arm</th>
+              <th scope="col">${this.metric} of 1st</th>
+              <th scope="col">${this.metric} of 2nd</th>
+              <th scope="col">1st − 2nd [95% interval]</th>
+              <th scope="col">P(1st &lt; 2nd)</th>
               <th scope="col">p (raw)</th>
               <th scope="col" data-p-adjusted-header>${adjusted}</th>
               <th class="l" scope="col">Verdict</th>
@@ -296,18 +349,18 @@ export class FfVerdictTable extends LitElement {
           <tbody>
             ${this.verdicts.map(
               (v) => html`<tr data-size=${v.size} data-tested=${v.tested ? 'yes' : 'no'} data-kind=${v.kind}>
-                <td class="l num">n = ${v.size}${v.scale !== 1 ? html`, ×${v.scale}` : nothing}${v.inTrainingRange ? html`<span class="star" title="inside the training size range">*</span>` : nothing}</td>
-                <td class="l shift">depth ${num(v.depthMean, 2)} · <wbr />degree ${num(v.meanDegree, 2)}</td>
-                <td class="num" data-constant>${num(v.constant)}${Number.isFinite(v.constantTrain) ? html`<span class="sub">train-fitted ${num(v.constantTrain)}</span>` : nothing}</td>
-                <td class="l"><span style=${`color: ${this.colorOf(v.a)}`}>${v.a}</span> vs <span style=${`color: ${this.colorOf(v.b)}`}>${v.b}</span></td>
-                <td class="num">${this.armCell(v, 'A')}</td>
-                <td class="num">${this.armCell(v, 'B')}</td>
-                <td class="num">
+                <td class="l num" data-label="Test size">n = ${v.size}${v.scale !== 1 ? html`, ×${v.scale}` : nothing}${v.inTrainingRange ? html`<span class="star" title="inside the training size range">*</span>` : nothing}</td>
+                <td class="l shift" data-label="What shifted">depth ${num(v.depthMean, 2)} · <wbr />degree ${num(v.meanDegree, 2)}</td>
+                <td class="num" data-constant data-label="best constant">${num(v.constant)}${Number.isFinite(v.constantTrain) ? html`<span class="sub">train-fitted ${num(v.constantTrain)}</span>` : nothing}</td>
+                <td class="l" data-label="Pair">${this.tag(v.a)} vs ${this.tag(v.b)}</td>
+                <td class="num" data-label=${`${this.metric} of 1st`}>${this.armCell(v, 'A')}</td>
+                <td class="num" data-label=${`${this.metric} of 2nd`}>${this.armCell(v, 'B')}</td>
+                <td class="num" data-label="1st − 2nd [95% interval]">
                   ${!v.n ? '—' : v.blownUpA || v.blownUpB ? html`<span class="ci">no interval: a run blew up</span>` : html`${num(v.diff)} <span class="ci">[${num(v.diffLow)}, ${num(v.diffHigh)}]</span>`}
                 </td>
-                <td class="num">${v.n ? num(v.probabilityOfImprovement, 2) : '—'}</td>
-                <td class="num" data-p-raw>${v.n ? pValue(v.pRaw) : '—'}</td>
-                <td class="num p-adj" data-p-adjusted title=${v.tested ? '' : 'descriptive only: nothing is tested at this rung'}>
+                <td class="num" data-label="P(1st < 2nd)">${v.n ? num(v.probabilityOfImprovement, 2) : '—'}</td>
+                <td class="num" data-p-raw data-label="p (raw)">${v.n ? pValue(v.pRaw) : '—'}</td>
+                <td class="num p-adj" data-p-adjusted data-label=${adjusted} title=${v.tested ? '' : 'descriptive only: nothing is tested at this rung'}>
                   ${v.n && v.tested ? pValue(v.pAdjusted) : v.n ? 'not tested' : '—'}
                 </td>
                 ${this.verdictCell(v)}
@@ -318,8 +371,8 @@ export class FfVerdictTable extends LitElement {
         <div class="foot">
           * inside the training size range. Depth: rounds the exact algorithm needs on these graphs; degree: mean incoming messages per node. Lower ${this.metric} is
           better; rel.: mean relative error |y − t|/|t|. Best constant: the error of predicting one number for every node, the best such number for that size
-          (train-fitted: the number fitted on the training graphs); <strong>!</strong> marks an arm that does not beat it. P(A &lt; B) is the share of seed pairs
-          where A had the lower error (ties count half).${blownAnywhere ? ' A run that blew up (diverged, failed or gave a non-finite error) ranks as the worst outcome in the paired test.' : ''}
+          (train-fitted: the number fitted on the training graphs); <strong>!</strong> marks an arm that does not beat it. P(1st &lt; 2nd) is the share of seed pairs
+          where the 1st arm had the lower error (ties count half).${blownAnywhere ? ' A run that blew up (diverged, failed or gave a non-finite error) ranks as the worst outcome in the paired test.' : ''}
         </div>
         ${this.adjustment ? html`<div class="foot" data-adjustment-note>${this.adjustment.note}</div>` : nothing}
       </div>

@@ -6,7 +6,10 @@
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import { parsePresetText } from '../share/preset-file.ts';
 
-export const DEFAULT_PRESET = 'shortest-path-max-vs-sum';
+/** What a first visit shows: a run short enough to watch (about half a minute). */
+export const DEFAULT_PRESET = 'quick-demo';
+/** The full experiment the quick demo previews, one click away in the run bar. */
+export const FULL_PRESET = 'shortest-path-max-vs-sum';
 
 export type PresetEntry =
   | { id: string; file: string; ok: true; spec: ExperimentSpec }
@@ -28,7 +31,7 @@ export function loadPresets(): PresetEntry[] {
       return { id, file, ok: false, error: error instanceof Error ? error.message : String(error) };
     }
   });
-  // The default first, then the quick demo, then the rest by name.
-  const rank = (id: string) => (id === DEFAULT_PRESET ? 0 : id === 'quick-demo' ? 1 : 2);
+  // The quick demo first, then the full experiment, then the rest by name.
+  const rank = (id: string) => (id === DEFAULT_PRESET ? 0 : id === FULL_PRESET ? 1 : 2);
   return entries.sort((a, b) => rank(a.id) - rank(b.id) || a.id.localeCompare(b.id));
 }

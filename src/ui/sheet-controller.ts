@@ -14,6 +14,7 @@ import { parsePresetText, PresetError } from '../share/preset-file.ts';
 import { applyEdit, sameSpec, validateDraft, type Draft, type SpecEdit, type Validation } from './spec-draft.ts';
 import { DEFAULT_PRESET, loadPresets, type PresetEntry } from './presets.ts';
 import { RunController, type RunSnapshot } from './run-controller.ts';
+import { estimateCost, type CostEstimate } from '../experiment/cost.ts';
 import { openRunStore, memoryRunStore, type RunStore } from './run-store.ts';
 import { wrapWebWorker, type FaultKind, type PoolWorker } from './worker-pool.ts';
 import { buildEvidence, type EvidenceView } from './evidence.ts';
@@ -321,6 +322,13 @@ export class SheetController implements ReactiveController {
     return this.runs.missing().length;
   }
 
+  /** About how long the missing runs take on the chosen workers (the cost model of experiment/cost.ts). */
+  estimate(): CostEstimate | null {
+    const v = this.model.validation;
+    if (!v.ok || this.model.run.specHash !== specHash(v.spec)) return null;
+    return estimateCost(v.spec, this.runs.missing().map((p) => p.armIndex), this.model.workers);
+  }
+
   setWorkers(count: number): void {
     if (Number.isInteger(count) && count >= 1 && count <= this.model.maxWorkers) this.set({ workers: count });
   }
@@ -338,6 +346,14 @@ export class SheetController implements ReactiveController {
       this.runs.start(this.model.workers);
     };
     void go();
+  }
+
+  /** Run every run of the sheet's spec afresh (nothing missing: the reader wants to see it again). */
+  runAgain(): void {
+    const v = this.model.validation;
+    if (!v.ok || this.runs.running || this.model.run.specHash !== specHash(v.spec)) return;
+    this.rememberInAddress(v.spec);
+    void this.runs.again(this.model.workers);
   }
 
   cancel(): void {

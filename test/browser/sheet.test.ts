@@ -95,9 +95,15 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     await field.blur();
   }
 
-  it('loads the default preset, runs a quick setup made in the sheet, and shows curves and a verdict', async () => {
+  it('loads the quick demo, runs a quick setup made in the sheet, and shows curves and a verdict', async () => {
     const page = await open('');
-    expect(await page.getByLabel('Question', { exact: true }).inputValue()).toMatch(/max aggregation extrapolate better than sum/);
+    // A first visit gets the quick demo; the full experiment is one click away in the run bar, and back.
+    expect(await page.getByLabel('Question', { exact: true }).inputValue()).toMatch(/^Quick demo: .*max aggregation hold up better than sum/);
+    await page.locator('ff-run-controls button[data-action="switch-preset"]').click();
+    await expect.poll(() => page.getByLabel('Question', { exact: true }).inputValue()).toMatch(/max aggregation extrapolate better than sum/);
+    expect(await page.locator('ff-run-controls [data-estimate]').textContent()).toMatch(/^≈ \d+ (s|min) on \d+ workers?$/);
+    await page.locator('ff-run-controls button[data-action="switch-preset"]').click();
+    await expect.poll(() => page.getByLabel('Question', { exact: true }).inputValue()).toMatch(/^Quick demo/);
     expect(await state(page)).toBe('idle');
     // Every presets/*.json is offered.
     const presetFiles = readdirSync(join(ROOT, 'presets')).filter((f) => f.endsWith('.json'));
@@ -210,7 +216,7 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
     await page.reload();
     await page.waitForSelector('ff-sheet[data-ready="yes"]');
     await expect.poll(() => page.locator('ff-progress .cell[data-kept="yes"]').count(), { timeout: 10_000 }).toBe(kept);
-    expect(await page.locator('ff-run-controls [data-kept]').getAttribute('data-kept')).toBe(String(kept));
+    expect(await page.locator('ff-run-options [data-kept]').getAttribute('data-kept')).toBe(String(kept));
     expect(await runButton(page).textContent()).toContain(`Run the ${6 - kept} missing run`);
     // Kept runs already show as evidence before anything runs.
     expect(await page.locator('ff-evidence [data-headline]').count()).toBe(1);
@@ -256,7 +262,7 @@ describe.skipIf(!existsSync(CHROMIUM))('experiment sheet in Chromium (built site
       const notice = page.locator('ff-notice [role="alert"]');
       await expect.poll(() => notice.textContent()).toMatch(/This share link could not be opened/);
       expect(await notice.textContent()).toMatch(/default experiment is shown below/);
-      expect(await page.getByLabel('Question', { exact: true }).inputValue()).toMatch(/max aggregation extrapolate better than sum/);
+      expect(await page.getByLabel('Question', { exact: true }).inputValue()).toMatch(/^Quick demo/);
       expect(await state(page)).toBe('idle');
       expect(await runButton(page).isEnabled()).toBe(true);
       await page.close();
