@@ -11,6 +11,8 @@ import { canonicalJson } from '../../src/util/hash.ts';
 import { decodeSpecLink, encodeSpecLink } from '../../src/share/link.ts';
 import { specRefusal, tinySpec } from '../helpers.ts';
 import { spawnSync } from 'node:child_process';
+import { taskInfo } from '../../src/ui/catalogue.ts';
+import { applyEdit } from '../../src/ui/spec-draft.ts';
 import { fileURLToPath } from 'node:url';
 
 const base = (task: unknown, over: Record<string, unknown> = {}): Record<string, unknown> => ({
@@ -90,5 +92,17 @@ describe('a recurrence on the command line', () => {
     const bad = run('--task', '{"recurrence":{"semiring":"or-and"}}', '--family', 'dag', '--nodes', '6');
     expect(bad.status).not.toBe(0);
     expect(bad.stderr).toMatch(/--task: task\.recurrence\.others: got "edge-weights" with semiring "or-and", allowed "unit"/);
+  });
+});
+
+describe('in the sheet', () => {
+  it('the task gloss carries the suggestion, and picking a built-in task replaces the recurrence', () => {
+    const ref = { recurrence: { semiring: 'max-min', source: 'drawn-widest-edge', others: 'edge-weights', direction: 'forward' } } as const;
+    const info = taskInfo(ref);
+    expect(info?.id).toBe('recurrence:max-min/drawn-widest-edge/edge-weights/forward');
+    expect(info?.suggestion).toMatch(/^max-min \(⊕ = max, ⊗ = min\): aggregator "max" for ⊕, no message layer in the catalogue computes ⊗ here/);
+    expect(taskInfo({ recurrence: { ...ref.recurrence, semiring: 'min-plus' } })).toBeUndefined(); // refused combination: the draft's validation names it
+    const draft = tinySpec({ task: ref } as Partial<SpecInput>);
+    expect(applyEdit(draft, { kind: 'task', task: 'hop-count' }).task).toBe('hop-count');
   });
 });
