@@ -69,7 +69,7 @@ function startInput(spec: RecurrenceSpec, system: RecurrenceSystem): number[] {
   return system.start.map((b, v) => {
     if (Number.isFinite(b)) return b;
     if (spec.semiring === 'min-plus') return m;
-    if (spec.semiring === 'max-plus') return -m;
+    if (spec.semiring === 'max-plus') return 0 - m; // −m, but +0 (not −0) on a graph without edges
     // max-min: −∞ (unreached) below every width; +∞ at the source, the widest first edge.
     if (b < 0) return 0;
     const widest = widestOutgoing(system, v);
@@ -98,7 +98,8 @@ function buildInstance(spec: RecurrenceSpec, graph: Graph, options: TaskOptions)
   const { value, rounds } = solveRecurrence(spec.semiring, system, WHERE);
   const { target, mask } = maskNonFinite(value);
   const nodeInput = nodeWeights ?? startInput(spec, system);
-  const edgeInput = nodeWeights ? src.map(() => medianMagnitude(nodeWeights)) : factor;
+  const unit = nodeWeights ? medianMagnitude(nodeWeights) : 0;
+  const edgeInput = nodeWeights ? src.map(() => unit) : factor;
   return {
     nodes: n,
     nodeInputs: nodeInput.map((x) => [x]),
