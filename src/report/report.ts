@@ -19,7 +19,7 @@
 import type { ResultsDocument } from '../experiment/results.ts';
 import { armModel, type ExperimentSpec } from '../experiment/spec.ts';
 import { DEFAULT_LINK_BASE, encodeSpecLink } from '../share/link.ts';
-import { AUTO_LOG_DECADES, buildEvidence, type EvidenceView, type GateRow, type VerdictRow } from '../ui/evidence.ts';
+import { AUTO_LOG_DECADES, blownUpLabel, buildEvidence, type EvidenceView, type GateRow, type VerdictRow } from '../ui/evidence.ts';
 import { autoLogReason, evidenceFigures } from '../ui/figure-list.ts';
 import { num, percent, pValue } from '../ui/format.ts';
 import { canonicalJson } from '../util/hash.ts';
@@ -183,6 +183,22 @@ function verdictTable(view: EvidenceView): string {
   <p class="foot">* inside the training size range. ${esc(view.adjustment.note)}</p>`;
 }
 
+/** With more than two arms: each rung's arms from lowest to highest mean error (not a verdict). */
+function rankingTable(view: EvidenceView): string {
+  if (view.arms.length <= 2 || view.rankings.length === 0) return '';
+  const rows = view.rankings.map((r) => {
+    const order = r.order
+      .map((o) => `<span style="color:${esc(o.color)}">${esc(o.arm)}</span> <span class="muted">${o.n ? esc(num(o.mean)) : ''}${o.blownUp ? ` (${esc(blownUpLabel(o.blownUp))})` : ''}</span>`)
+      .join(' &lt; ');
+    return `<tr><td class="l">n = ${r.size}${r.scale !== 1 ? `, ×${r.scale}` : ''}</td><td class="l">${order}</td></tr>`;
+  });
+  return `<table class="ranking" data-ranking>
+    <caption>Ranking by mean ${esc(view.metric)}, lowest first (neighbours often overlap: only the verdicts below test a difference)</caption>
+    <thead><tr><th class="l" scope="col">Test size</th><th class="l" scope="col">Arms, best to worst (mean over seeds)</th></tr></thead>
+    <tbody>${rows.join('')}</tbody>
+  </table>`;
+}
+
 function notes(view: EvidenceView): string {
   const items = [
     ...view.noSkill.map((t) => `<li class="danger-note"><strong>No skill.</strong> ${esc(t)}</li>`),
@@ -234,7 +250,7 @@ export async function buildReport(doc: ResultsDocument, options: ReportOptions):
   }
   const hasEvidence = view.curves.length > 0 || view.blownUp.length > 0;
   const evidence = hasEvidence
-    ? `${figuresHtml(view, options)}${verdictTable(view)}${notes(view)}${baselinesTable(view)}`
+    ? `${figuresHtml(view, options)}${rankingTable(view)}${verdictTable(view)}${notes(view)}${baselinesTable(view)}`
     : '<p class="muted">No finished runs: no figures or verdicts yet.</p>';
   return `<!doctype html>
 <html lang="en">
