@@ -11,6 +11,7 @@ import type { FamilyInfo, TaskInfo } from './catalogue.ts';
 import { OPTIONS, taskInfo } from './catalogue.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
+import './ff-graph-files.ts';
 
 type Path = ReadonlyArray<string | number>;
 
@@ -230,6 +231,7 @@ export class FfSetup extends LitElement {
         scale shift: weights ×${this.list(['test', 'weightScales'], d.test.weightScales, 'Weight scales (comma-separated; 1 = as in training)', d.test.weightScales.length < 2)};
         validate in distribution on ${this.number(['test', 'validationGraphs'], d.test.validationGraphs, 'Validation graphs', { min: 4 })} graphs.
       </div>
+      <div class="term">Graph files</div><ff-graph-files class="sentence" .files=${d.test.files} .task=${d.task} ?disabled=${this.disabled}></ff-graph-files>
 
       <div class="term">Seeds</div>
       <div class="sentence">

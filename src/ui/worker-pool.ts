@@ -13,6 +13,7 @@ import type { RunPlan } from '../experiment/plan.ts';
 import type { RunResult } from '../experiment/run.ts';
 import type { FromWorker } from '../../workers/protocol.ts';
 import { failedResult } from '../experiment/run-record.ts';
+import { withGraphFiles } from './graph-file-store.ts';
 import { runPoolCore, type CorePoolOptions, type FaultKind, type PoolEvents, type PoolWorker } from '../experiment/worker-pool-core.ts';
 
 export type { FaultKind, PoolEvents, PoolWorker };
@@ -46,6 +47,7 @@ export function wrapWebWorker(worker: Worker): PoolWorker {
 }
 
 export function runWorkerPool(spec: ExperimentSpec, plans: readonly RunPlan[], options: PoolOptions): PoolHandle {
-  const pool = runPoolCore(spec, plans, options);
+  // Graph files travel with each plan to the page's own workers (never uploaded).
+  const pool = runPoolCore(spec, plans.map((plan) => withGraphFiles(spec, plan)), options);
   return { done: pool.done, cancel: () => void pool.cancel() };
 }
