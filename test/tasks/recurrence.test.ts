@@ -309,6 +309,26 @@ describe('on a real graph file', () => {
     }
   });
 
+  it('us-counties.gr (DIMACS, 3,216 counties): min-plus equals graphology-shortest-path Dijkstra lengths', () => {
+    // Same derivation as us-states.csv (us-atlas, ISC; U.S. Census Bureau boundaries, public domain).
+    const counties = readGraphFile({ name: 'us-counties.gr' }, readFileSync(new URL('../../presets/graphs/us-counties.gr', import.meta.url), 'utf8'));
+    const { graph, instance } = fileInstance(getTask({ recurrence: spec('min-plus') }), counties, { source: '1' });
+    const lengths = dijkstra.singleSource(graph, String(instance.source));
+    let reached = 0;
+    for (let i = 0; i < graph.order; i++) {
+      const p = lengths[String(i)];
+      if (!p) {
+        expect(instance.mask[i]).toBe(0);
+        continue;
+      }
+      reached++;
+      let d = 0;
+      for (let j = 1; j < p.length; j++) d += graph.getEdgeAttribute(graph.edge(p[j - 1]!, p[j]!)!, 'weight') as number;
+      expect(instance.target[i]).toBeCloseTo(d, 6);
+    }
+    expect(reached).toBeGreaterThan(3000);
+  });
+
   it('scores reachability and refuses what the file cannot give', () => {
     const reach = fileInstance(getTask({ recurrence: spec('or-and', { others: 'unit' }) }), file, { source: 'Kansas' }).instance;
     const hops = fileInstance(getTask('hop-count'), file, { source: 'Kansas' }).instance;
