@@ -21,7 +21,11 @@ export const tasks: Record<string, Task> = {
 /** What a spec's `task` holds: a built-in task's id, or a recurrence (src/tasks/recurrence/). */
 export type TaskRef = string | { recurrence: RecurrenceSpec };
 
-/** The built-in task of that id, or undefined (own keys only: "constructor" must not find Object's). */
+/**
+ * The built-in task of that id, or undefined (own keys only: "constructor" must
+ * not find Object's); a recurrence's task, which throws for a combination
+ * `recurrenceProblems` refuses (the spec checker reports those by field first).
+ */
 export function findTask(ref: TaskRef): Task | undefined {
   if (typeof ref !== 'string') return recurrenceTask(ref.recurrence);
   return Object.hasOwn(tasks, ref) ? tasks[ref] : undefined;
