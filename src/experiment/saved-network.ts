@@ -6,19 +6,17 @@
  * the JSON carries what is needed to rebuild and score the network without
  * retraining: the spec, the arm and seed, the engine version, the feature
  * transforms with their training-set statistics, and the run's recorded
- * errors for comparison. Host-agnostic: file access lives in the hosts.
+ * errors for comparison. Host-agnostic and free of tfjs (the page builds
+ * downloads with it); loading a file back into a network is in score.ts.
  *
  * Weight names are the network's parameter names (`encode.w`,
  * `message.semiring`, …), so any tfjs reader can load the shard with
  * `tf.io.decodeWeights(data, manifest[0].weights)`.
  */
-import * as tf from '@tensorflow/tfjs-core';
+import type * as tf from '@tensorflow/tfjs-core';
 import { z } from 'zod';
-import { armModel, describeIssue, SpecError, TRANSFORMS, type ExperimentSpec } from './spec.ts';
+import { describeIssue, SpecError, TRANSFORMS, type ExperimentSpec } from './spec.ts';
 import type { RunResult } from './run-types.ts';
-import { seedRoot } from './datasets.ts';
-import { getTask } from '../tasks/registry.ts';
-import { MessagePassingNetwork } from '../model/network.ts';
 import type { FeatureTransforms } from '../train/batch.ts';
 import { validateUntrusted } from '../share/spec-gate.ts';
 import { specHash } from './results.ts';
@@ -161,40 +159,4 @@ export function readSavedNetwork(raw: unknown, origin: string): SavedNetwork {
 /** Bytes the shard must hold: 4 per float32 value, in manifest order. */
 export function shardBytes(file: SavedNetwork): number {
   return file.weightsManifest[0]!.weights.reduce((sum, w) => sum + 4 * w.shape.reduce((a, b) => a * b, 1), 0);
-}
-
-/**
- * Rebuild the arm's network and load the saved weights into it. Every
- * parameter the architecture declares must be in the file with its shape, and
- * nothing else, so a shard from another arm or spec is refused rather than
- * half-loaded. The caller disposes the network.
- */
-export function loadSavedNetwork(file: SavedNetwork, data: ArrayBuffer, origin: string): MessagePassingNetwork {
-  const entries = file.weightsManifest[0]!.weights;
-  const expected = shardBytes(file);
-  if (data.byteLength !== expected) {
-    throw new NetworkFileError(`${origin}: the shard ${file.weightsManifest[0]!.paths[0]} holds ${data.byteLength} bytes, the manifest describes ${expected}`);
-  }
-  const task = getTask(file.spec.task);
-  const network = new MessagePassingNetwork(armModel(file.spec, file.armIndex), task.nodeFeatureNames.length, task.edgeFeatureNames.length, seedRoot(file.seed));
-  const decoded = tf.io.decodeWeights(data, entries);
-  try {
-    const names = new Set(Object.keys(decoded));
-    for (const [name, variable] of network.params.vars) {
-      const tensor = decoded[name];
-      if (!tensor) throw new NetworkFileError(`${origin}: weightsManifest: no weight "${name}", which arm ${file.arm} of this spec needs`);
-      if (tensor.shape.join('x') !== variable.shape.join('x')) {
-        throw new NetworkFileError(`${origin}: weightsManifest: "${name}" has shape [${tensor.shape.join(', ')}], arm ${file.arm} needs [${variable.shape.join(', ')}]`);
-      }
-      variable.assign(tensor);
-      names.delete(name);
-    }
-    if (names.size) throw new NetworkFileError(`${origin}: weightsManifest: weights this arm does not have: ${[...names].join(', ')}`);
-  } catch (error) {
-    network.dispose();
-    throw error;
-  } finally {
-    tf.dispose(Object.values(decoded));
-  }
-  return network;
 }

@@ -6,14 +6,15 @@
  * own spec the numbers are the recorded ones to the last bit;
  * `compareRecorded` checks that. Host-agnostic.
  */
-import type { ExperimentSpec } from './spec.ts';
-import { makeSeedData } from './datasets.ts';
+import * as tf from '@tensorflow/tfjs-core';
+import { armModel, type ExperimentSpec } from './spec.ts';
+import { makeSeedData, seedRoot } from './datasets.ts';
 import { fileRung, type GraphFileContent } from './file-rungs.ts';
 import { getTask } from '../tasks/registry.ts';
 import { evaluateLarge } from '../train/evaluate-large.ts';
-import type { SavedNetwork, SavedRung } from './saved-network.ts';
+import { NetworkFileError, shardBytes, type SavedNetwork, type SavedRung } from './saved-network.ts';
 import { specHash } from './results.ts';
-import type { MessagePassingNetwork } from '../model/network.ts';
+import { MessagePassingNetwork } from '../model/network.ts';
 import { evaluateSet } from '../train/evaluate.ts';
 import type { Metrics } from '../train/metrics.ts';
 import type { TaskInstance } from '../tasks/types.ts';
@@ -99,4 +100,40 @@ export function compareRecorded(file: SavedNetwork, score: LadderScore): Recorde
     const exact = recorded === null ? null : same(recorded.mae, set.metrics.mae) && same(recorded.mre, set.metrics.mre) && same(recorded.miss, set.metrics.miss);
     return { set, recorded, exact };
   });
+}
+
+/**
+ * Rebuild the arm's network and load the saved weights into it. Every
+ * parameter the architecture declares must be in the file with its shape, and
+ * nothing else, so a shard from another arm or spec is refused rather than
+ * half-loaded. The caller disposes the network.
+ */
+export function loadSavedNetwork(file: SavedNetwork, data: ArrayBuffer, origin: string): MessagePassingNetwork {
+  const entries = file.weightsManifest[0]!.weights;
+  const expected = shardBytes(file);
+  if (data.byteLength !== expected) {
+    throw new NetworkFileError(`${origin}: the shard ${file.weightsManifest[0]!.paths[0]} holds ${data.byteLength} bytes, the manifest describes ${expected}`);
+  }
+  const task = getTask(file.spec.task);
+  const network = new MessagePassingNetwork(armModel(file.spec, file.armIndex), task.nodeFeatureNames.length, task.edgeFeatureNames.length, seedRoot(file.seed));
+  const decoded = tf.io.decodeWeights(data, entries);
+  try {
+    const names = new Set(Object.keys(decoded));
+    for (const [name, variable] of network.params.vars) {
+      const tensor = decoded[name];
+      if (!tensor) throw new NetworkFileError(`${origin}: weightsManifest: no weight "${name}", which arm ${file.arm} of this spec needs`);
+      if (tensor.shape.join('x') !== variable.shape.join('x')) {
+        throw new NetworkFileError(`${origin}: weightsManifest: "${name}" has shape [${tensor.shape.join(', ')}], arm ${file.arm} needs [${variable.shape.join(', ')}]`);
+      }
+      variable.assign(tensor);
+      names.delete(name);
+    }
+    if (names.size) throw new NetworkFileError(`${origin}: weightsManifest: weights this arm does not have: ${[...names].join(', ')}`);
+  } catch (error) {
+    network.dispose();
+    throw error;
+  } finally {
+    tf.dispose(Object.values(decoded));
+  }
+  return network;
 }

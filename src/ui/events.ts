@@ -21,6 +21,8 @@ export interface SheetEventDetails {
   'ff-workers': { count: number };
   'ff-copy-link': null;
   'ff-export-results': { format: ResultsFormat };
+  /** Download the trained network of the run with this index (weights manifest + shard). */
+  'ff-download-network': { index: number };
   'ff-export-figure': { name: string; format: 'svg' | 'png'; svg: SVGSVGElement };
   'ff-log-scale': { on: boolean };
 }
@@ -42,6 +44,7 @@ declare global {
     'ff-workers': CustomEvent<{ count: number }>;
     'ff-copy-link': CustomEvent<null>;
     'ff-export-results': CustomEvent<{ format: ResultsFormat }>;
+    'ff-download-network': CustomEvent<{ index: number }>;
     'ff-export-figure': CustomEvent<{ name: string; format: 'svg' | 'png'; svg: SVGSVGElement }>;
     'ff-log-scale': CustomEvent<{ on: boolean }>;
   }

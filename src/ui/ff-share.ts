@@ -1,6 +1,6 @@
-/** <ff-share>: the share link, the results fingerprint (and whether it matches the link's), and results exports. */
+/** <ff-share>: the share link, the results fingerprint (and whether it matches the link's), results exports and trained networks. */
 import { LitElement, css, html, nothing } from 'lit';
-import type { FingerprintCheck, ShareState } from './sheet-controller.ts';
+import type { FingerprintCheck, NetworkChoice, ShareState } from './sheet-controller.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
 
@@ -12,6 +12,8 @@ export class FfShare extends LitElement {
     check: { attribute: false },
     hasResults: { type: Boolean },
     edited: { type: Boolean },
+    networks: { attribute: false },
+    network: { state: true },
   };
   declare share: ShareState;
   /** The results fingerprint, once every run is in; '' before. */
@@ -20,6 +22,10 @@ export class FfShare extends LitElement {
   declare check: FingerprintCheck | null;
   declare hasResults: boolean;
   declare edited: boolean;
+  /** Runs of this visit whose trained network can be downloaded. */
+  declare networks: NetworkChoice[];
+  /** The run index picked in the network list; -1: the first. */
+  declare network: number;
 
   static override styles = [
     controls,
@@ -113,6 +119,24 @@ export class FfShare extends LitElement {
     this.check = null;
     this.hasResults = false;
     this.edited = false;
+    this.networks = [];
+    this.network = -1;
+  }
+
+  private networkRow() {
+    const choices = this.networks;
+    if (choices.length === 0) return nothing;
+    const picked = choices.some((n) => n.index === this.network) ? this.network : choices[0]!.index;
+    return html`<div class="row exports" data-networks>
+        <select aria-label="Trained network (arm and seed)" @change=${(e: Event) => (this.network = Number((e.target as HTMLSelectElement).value))}>
+          ${choices.map((n) => html`<option value=${n.index} ?selected=${n.index === picked}>${n.label}</option>`)}
+        </select>
+        <button type="button" data-action="download-network" @click=${() => emit(this, 'ff-download-network', { index: picked })}>Download network</button>
+      </div>
+      <p class="small">
+        Two files in TensorFlow.js's weights format: a JSON manifest with the spec, arm and seed, and its binary shard. Keep them side by side;
+        <code>npx farfield score &lt;file&gt;.json</code> rescores the network without retraining.
+      </p>`;
   }
 
   private checkText(c: FingerprintCheck): string {
@@ -165,6 +189,7 @@ export class FfShare extends LitElement {
             Report (HTML)
           </button>
         </div>
+        ${this.networkRow()}
       </div>
     </div>`;
   }

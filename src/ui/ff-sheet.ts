@@ -346,6 +346,8 @@ export class FfSheet extends LitElement {
           ?edited=${m.edited}
           @ff-copy-link=${() => void c.copyShareLink()}
           @ff-export-results=${(e: CustomEvent<{ format: ResultsFormat }>) => void c.exportResults(e.detail.format)}
+          .networks=${c.networkChoices()}
+          @ff-download-network=${(e: CustomEvent<{ index: number }>) => c.downloadNetwork(e.detail.index)}
         ></ff-share>
       </section>
       <footer>

@@ -12,6 +12,7 @@ import { renumbered, runKey } from '../experiment/run-key.ts';
 import type { ToWorker } from '../../workers/protocol.ts';
 import { runWorkerPool, type FaultKind, type PoolHandle, type PoolWorker } from './worker-pool.ts';
 import { keepable, type RunStore } from './run-store.ts';
+import type { TrainedWeights } from '../experiment/network-weights.ts';
 
 export type SheetState = 'idle' | 'running' | 'done' | 'cancelled';
 export type RunPhase = 'waiting' | 'running' | 'ok' | 'diverged' | 'failed' | 'cancelled';
@@ -71,6 +72,8 @@ export interface RunControllerOptions {
 }
 
 const MAX_LOSS_SAMPLES = 240;
+/** Trained weights kept in memory for download, at most this many bytes in all (the oldest go first). */
+const MAX_WEIGHT_BYTES = 64 * 1024 * 1024;
 
 function trackFor(plan: RunPlan): RunTrack {
   return { plan, phase: 'waiting', kept: false, step: 0, totalSteps: 0, losses: [], startedAt: null, finishedAt: null };
@@ -99,6 +102,8 @@ export class RunController {
   private loadToken = 0;
   /** Every deterministic run finished or read back in this visit, by run key, for reuse after an edit. */
   private readonly reusable = new Map<string, RunResult>();
+  /** Trained networks of this visit's runs, by run key, for "download a trained network" (never stored). */
+  private readonly weights = new Map<string, TrainedWeights>();
   private readonly now: () => number;
 
   constructor(private readonly options: RunControllerOptions) {
@@ -206,6 +211,7 @@ export class RunController {
       createWorker: this.options.createWorker,
       init: this.options.init,
       ...(this.options.faults ? { faults: this.options.faults } : {}),
+      keepWeights: true,
       events: {
         onReady: (info) => {
           if (this.pool === pool) this.update({ engine: { backend: info.backend, threads: info.threads, simd: info.simd } });
@@ -222,10 +228,11 @@ export class RunController {
             return { ...t, step, totalSteps, losses };
           });
         },
-        onResult: (result) => {
+        onResult: (result, weights) => {
           if (this.pool !== pool) return;
           const plan = todo.find((p) => p.index === result.index);
           if (!plan) return;
+          if (weights && result.status === 'ok') this.keepWeights(runKey(spec, plan), weights);
           this.update({
             results: [...this.snapshot.results.filter((r) => r.index !== result.index), result].sort((a, b) => a.index - b.index),
             tracks: this.snapshot.tracks.map((t) => (t.plan.index === result.index ? finishedTrack(plan, result, false, this.now()) : t)),
@@ -244,6 +251,23 @@ export class RunController {
       const complete = this.snapshot.results.length === this.snapshot.tracks.length;
       this.update({ state: complete ? 'done' : 'idle', finishedAt: this.now() });
     });
+  }
+
+  private keepWeights(key: string, weights: TrainedWeights): void {
+    this.weights.delete(key);
+    this.weights.set(key, weights);
+    let total = 0;
+    for (const w of this.weights.values()) total += w.data.byteLength;
+    for (const [oldest, w] of this.weights) {
+      if (total <= MAX_WEIGHT_BYTES) break;
+      this.weights.delete(oldest);
+      total -= w.data.byteLength;
+    }
+  }
+
+  /** The trained network of a run of `spec`, if it was trained in this visit (runs read back from storage have none). */
+  trainedWeights(spec: ExperimentSpec, plan: Pick<RunPlan, 'armIndex' | 'seed'>): TrainedWeights | undefined {
+    return this.weights.get(runKey(spec, plan));
   }
 
   /**

@@ -22,6 +22,7 @@ import { download, resultsCsv, resultsJson, svgToPng, svgText } from './export.t
 import { wasmPaths } from './wasm-paths.ts';
 import { LOAD_FAULT_WORKER_NAME } from '../../workers/protocol.ts';
 import type { ResultsFormat } from './events.ts';
+import { savedNetworkFiles } from '../experiment/saved-network.ts';
 
 export type SheetSource =
   | { kind: 'preset'; id: string; file: string }
@@ -47,6 +48,12 @@ export interface FingerprintCheck {
   expected: string;
   /** 'pending' until every run is in; 'stale' when the spec was edited after opening the link. */
   verdict: 'pending' | 'match' | 'differ' | 'stale';
+}
+
+/** A run whose trained network the sheet can offer for download. */
+export interface NetworkChoice {
+  index: number;
+  label: string;
 }
 
 export interface SheetModel {
@@ -457,6 +464,24 @@ export class SheetController implements ReactiveController {
     } catch {
       this.set({ share: { ...this.model.share, status: 'The clipboard is not available here: select the link below and copy it.' } });
     }
+  }
+
+  /** Finished runs of this visit whose trained network can be downloaded. */
+  networkChoices(): NetworkChoice[] {
+    const doc = this.model.doc;
+    if (!doc) return [];
+    return doc.runs.filter((r) => r.status === 'ok' && this.runs.trainedWeights(doc.spec, r)).map((r) => ({ index: r.index, label: `${r.arm}, seed ${r.seed}` }));
+  }
+
+  /** The run's trained network in TensorFlow.js's weights format: the JSON manifest (with spec, arm, seed), then its shard. */
+  downloadNetwork(index: number): void {
+    const doc = this.model.doc;
+    const run = doc?.runs.find((r) => r.index === index);
+    const weights = doc && run ? this.runs.trainedWeights(doc.spec, run) : undefined;
+    if (!doc || !run || !weights) return;
+    const { json, shard } = savedNetworkFiles(doc.spec, run, weights, ENGINE_VERSION);
+    download(json.name, json.text, 'application/json');
+    download(shard.name, new Blob([shard.bytes as Uint8Array<ArrayBuffer>], { type: 'application/octet-stream' }));
   }
 
   async exportResults(format: ResultsFormat): Promise<void> {

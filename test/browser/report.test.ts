@@ -7,7 +7,7 @@
  * file from a run made in the page (the built site, as users get it).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser } from 'playwright-core';
+import { chromium, type Browser, type Download } from 'playwright-core';
 import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -110,7 +110,7 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
     await context.close();
   }, 60_000);
 
-  it('the sheet\'s Report button downloads the same kind of file from a run in the page', async () => {
+  it('the sheet\'s Report button downloads the same kind of file from a run in the page, and a trained network that the CLI rescores exactly', async () => {
     const served = await site;
     const spec = validateSpec(JSON.parse(readFileSync(tiny, 'utf8')));
     const fragment = await encodeSpecLink(spec, { base: '' });
@@ -123,7 +123,21 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
     expect(download.suggestedFilename()).toMatch(/^farfield-[0-9a-f]{16}-report\.html$/);
     const saved = join(dir, download.suggestedFilename());
     await download.saveAs(saved);
+
+    // A trained network of this run, in TensorFlow.js's weights format: the manifest, then its shard.
+    const downloads: Download[] = [];
+    page.on('download', (d) => downloads.push(d));
+    await page.locator('select[aria-label="Trained network (arm and seed)"]').selectOption({ label: 'sum, seed 4' });
+    await page.locator('button[data-action="download-network"]').click();
+    await expect.poll(() => downloads.length, { timeout: 10_000 }).toBe(2);
+    expect(downloads.map((d) => d.suggestedFilename())).toEqual(['run3-sum-seed4.json', 'run3-sum-seed4.bin']);
+    const nets = mkdtempSync(join(dir, 'nets-'));
+    for (const d of downloads) await d.saveAs(join(nets, d.suggestedFilename()));
     await context.close();
+    // Trained in the page, scored in Node: the same numbers to the last bit.
+    const scored = farfield('score', join(nets, 'run3-sum-seed4.json'), '--json');
+    expect(scored.code, scored.stderr).toBe(0);
+    expect(JSON.parse(scored.stdout)).toMatchObject({ ownLadder: true, reproduces: true });
 
     const offline = await openOffline(pathToFileURL(saved).href);
     expectFigures(offline.figures);

@@ -15,8 +15,8 @@ import { attachGraphFiles, graphsFlag } from '../graph-files.ts';
 import { num, renderTable } from '../format.ts';
 import { initBackend } from '../../engine/backend.ts';
 import { ENGINE_VERSION, specHash } from '../../experiment/results.ts';
-import { loadSavedNetwork, NetworkFileError, readSavedNetwork, shardBytes, type SavedNetwork } from '../../experiment/saved-network.ts';
-import { compareRecorded, scoreOnLadder, type RecordedCheck, type ScoredSet } from '../../experiment/score.ts';
+import { NetworkFileError, readSavedNetwork, shardBytes, type SavedNetwork } from '../../experiment/saved-network.ts';
+import { compareRecorded, loadSavedNetwork, scoreOnLadder, type RecordedCheck, type ScoredSet } from '../../experiment/score.ts';
 import { readJsonText, JsonTextError } from '../../share/json-text.ts';
 
 const USAGE = 'usage: farfield score <network.json> [<preset.json | link>] [--graphs a.gr,b.csv] [--json]';
