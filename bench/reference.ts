@@ -14,6 +14,7 @@
  */
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend, type BackendName } from '../src/engine/backend.ts';
+import { fusedKernelMatmulFlops } from '../src/engine/kernels-process.ts';
 import { modelSchema, type AggregatorName } from '../src/experiment/spec.ts';
 import { MessagePassingNetwork } from '../src/model/network.ts';
 import { buildInstance } from '../src/tasks/sample.ts';
@@ -201,11 +202,13 @@ export interface KernelStat {
   ms: number;
 }
 
-export type KernelCategory = 'matmul' | 'graph' | 'copies' | 'elementwise';
+export type KernelCategory = 'matmul' | 'fused' | 'graph' | 'copies' | 'elementwise';
 
 /** Which part of a step a kernel belongs to. */
 export function kernelCategory(name: string): KernelCategory {
   if (name === 'BatchMatMul' || name === '_FusedMatMul') return 'matmul';
+  // The whole message-passing loop, forward and backward (src/engine/kernels-process.ts); mostly matmuls inside.
+  if (name === 'FarfieldProcess' || name === 'FarfieldProcessGrad') return 'fused';
   if (name.startsWith('Farfield')) return 'graph';
   // The tape saves every input it needs for backprop with an Identity; reshapes and casts move no math.
   if (name === 'Identity' || name === 'Reshape' || name === 'Cast' || name === 'ZerosLike') return 'copies';
@@ -262,13 +265,15 @@ export async function profileStep(trainer: ReferenceTrainer, k = 3): Promise<Ste
   await initBackend(trainer.backend);
   const summarise = async (steps: number) => {
     const t0 = performance.now();
+    const fusedBefore = fusedKernelMatmulFlops();
     const info = await tf.profile(() => {
       trainer.trainSteps(steps);
     });
     const wall = performance.now() - t0;
+    // Products inside the fused process kernels are not separate launches; the kernels count them.
+    let flops = fusedKernelMatmulFlops() - fusedBefore;
     const byName = new Map<string, { count: number; ms: number }>();
     const byShape = new Map<string, { count: number; ms: number; flops: number }>();
-    let flops = 0;
     for (const kernel of info.kernels) {
       const ms = typeof kernel.kernelTimeMs === 'number' ? kernel.kernelTimeMs : 0;
       const entry = byName.get(kernel.name) ?? { count: 0, ms: 0 };
@@ -293,6 +298,7 @@ export async function profileStep(trainer: ReferenceTrainer, k = 3): Promise<Ste
   const top: KernelStat[] = [];
   const categories: StepProfile['categories'] = {
     matmul: { launches: 0, ms: 0 },
+    fused: { launches: 0, ms: 0 },
     graph: { launches: 0, ms: 0 },
     copies: { launches: 0, ms: 0 },
     elementwise: { launches: 0, ms: 0 },

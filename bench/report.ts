@@ -79,7 +79,7 @@ export interface BenchDocument {
     microsecondsPerLaunch: number;
     /** Milliseconds the matmuls would take at the 256³ rate. */
     matmulMsAtCeiling: number;
-    /** Milliseconds per step the matmul kernels took under tf.profile (max arm), and the rate that implies. */
+    /** Milliseconds per step the matmul kernels and the fused process kernels (mostly matmul) took under tf.profile (max arm), and the rate that implies. */
     matmulKernelMs: number;
     matmulKernelGflops: number;
     /** Matmul kernels by shape, slowest first (max arm, per step). */
@@ -286,7 +286,7 @@ export function renderReport(doc: BenchDocument): string {
       .join(', ')}; kernels ${f(fl.profiledKernelMs, 1)} of ${f(fl.profiledWallMs, 1)} ms wall`,
   );
   lines.push(`  top kernels: ${fl.topKernels.slice(0, 5).map((k) => `${k.name} ${thousands(k.count)}x ${f(k.ms, 1)} ms`).join(', ')}`);
-  lines.push(`  matmul kernels ${f(fl.matmulKernelMs, 1)} ms per step at ${f(fl.matmulKernelGflops, 1)} GFLOP/s (vs ${f(fl.matmulMsAtCeiling, 1)} ms at the 256³ rate); slowest shapes:`);
+  lines.push(`  matmul and fused process kernels ${f(fl.matmulKernelMs, 1)} ms per step at ${f(fl.matmulKernelGflops, 1)} GFLOP/s (vs ${f(fl.matmulMsAtCeiling, 1)} ms at the 256³ rate); slowest shapes:`);
   for (const mm of fl.matmulShapes.slice(0, 4)) {
     lines.push(`    ${lpad(f(mm.ms, 1), 6)} ms  ${lpad(thousands(mm.count), 3)}x  ${lpad(f(mm.gflops, 1), 5)} GFLOP/s  ${mm.shapes}`);
   }

@@ -62,6 +62,19 @@ export interface ProcessAttrs {
  */
 const STOCK_BLOCK = 48;
 
+let matmulFlops = 0;
+
+/** Matmul FLOPs (2·M·K·N per product) the fused kernels have run in this thread: the bench's profile counts them. */
+export function fusedKernelMatmulFlops(): number {
+  return matmulFlops;
+}
+
+/** The forward's products: act(bias + A·B), A [M,K], B [K,N], in k order from the bias or 0. */
+function matmul(raw: RawSimd, a: number, b: number, c: number, K: number, M: number, N: number, bias: number, relu: boolean): void {
+  matmulFlops += 2 * M * K * N;
+  raw.mmNN(a, b, c, K, M, N, bias, relu);
+}
+
 /** Leaky relu's slope as the stock kernel applies it (the attribute is rounded to float32). */
 const LEAKY = Math.fround(0.01);
 
@@ -249,11 +262,11 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
     const p = (k: keyof StepLayout) => base + 4 * layout[k];
     if (stash != null) copy(F, floatIndex(p('h')), hi, NH);
     // message: first layer per operand, gathered per edge with the constant edge term
-    raw.mmNN(h, ptr('jm'), s['P']!, H, N, 2 * H, 0, false);
+    matmul(raw, h, ptr('jm'), s['P']!, H, N, 2 * H, 0, false);
     raw.gatherPairAdd(s['P']!, src, dst, ptr('edgeTerm'), p('pre'), E, H);
     if (at.activation === 'relu') raw.relu(p('pre'), p('act'), EH);
     else raw.leakyRelu(p('pre'), p('act'), EH, LEAKY);
-    raw.mmNN(p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
+    matmul(raw, p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
     // aggregate
     const a = floatIndex(s['a']!);
     if (extreme) {
@@ -273,16 +286,16 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
     raw.copyBlock(raw.offset(encoded), p('concat') + 8 * H, N, H, H, 3 * H);
     // update: hidden layer, output layer, residual
     if (at.activation === 'relu' && at.record) {
-      raw.mmNN(p('concat'), ptr('ju'), p('x'), 3 * H, N, H, 0, false);
+      matmul(raw, p('concat'), ptr('ju'), p('x'), 3 * H, N, H, 0, false);
       if (bu !== 0) raw.addRow(p('x'), bu, p('x'), N, H);
       raw.relu(p('x'), p('hidden'), NH);
     } else if (at.activation === 'relu') {
-      raw.mmNN(p('concat'), ptr('ju'), p('hidden'), 3 * H, N, H, bu, true);
+      matmul(raw, p('concat'), ptr('ju'), p('hidden'), 3 * H, N, H, bu, true);
     } else {
-      raw.mmNN(p('concat'), ptr('ju'), p('x'), 3 * H, N, H, bu, false);
+      matmul(raw, p('concat'), ptr('ju'), p('x'), 3 * H, N, H, bu, false);
       raw.leakyRelu(p('x'), p('hidden'), NH, LEAKY);
     }
-    raw.mmNN(p('hidden'), ptr('w2u'), s['out']!, H, N, H, b2u, false);
+    matmul(raw, p('hidden'), ptr('w2u'), s['out']!, H, N, H, b2u, false);
     raw.add(h, s['out']!, h, NH);
   }
   release(raw);
@@ -380,6 +393,7 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
    * path sums it: in k order when its patched matmul runs it (SIMD), else in 48-wide blocks.
    */
   const product = (simdPath: boolean, a: number, rs: number, ks: number, b: number, c: number, K: number, M: number, N: number) => {
+    matmulFlops += 2 * M * K * N;
     if (simdPath || K <= STOCK_BLOCK) {
       raw.mmStrided(a, b, c, K, M, N, rs, ks);
       return;
