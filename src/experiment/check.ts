@@ -9,6 +9,9 @@ import { findTask, tasks } from '../tasks/registry.ts';
 import { families } from '../graphs/registry.ts';
 import { recurrenceProblems } from '../tasks/recurrence/options.ts';
 import { recurrenceWeightProblems } from '../tasks/recurrence/check.ts';
+import { fileTaskRule } from '../tasks/file-instance.ts';
+import { inferFormat } from '../graphs/files/read.ts';
+import { fileRungFamily } from '../graphs/files/types.ts';
 
 export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
   const problems: string[] = [];
@@ -77,6 +80,30 @@ export function checkSpec(spec: ExperimentSpec): ExperimentSpec {
       if (arm.stepSupervision) problems.push(`arms[${i}].stepSupervision: ${why}`);
     });
   }
+  // Graph files are read only when a host supplies them; here: can the task read one, and do their rungs stay apart.
+  (spec.test.files ?? []).forEach((file, i) => {
+    if (i === 0) {
+      try {
+        fileTaskRule(task);
+      } catch (error) {
+        problems.push(`test.files: ${(error instanceof Error ? error.message : String(error)).replace(/^[a-z-]+\/[a-z-]+: /, '')}`);
+      }
+    }
+    let format = file.format;
+    if (!format) {
+      try {
+        format = inferFormat(file.name);
+      } catch (error) {
+        problems.push(`test.files[${i}].format: missing, and ${error instanceof Error ? error.message : String(error)}`);
+      }
+    }
+    if (file.directed !== undefined && format && format !== 'edge-list') {
+      problems.push(`test.files[${i}].directed: only edge lists take it; a ${format} file states its own direction`);
+    }
+    if (spec.test.files!.findIndex((f) => fileRungFamily(f) === fileRungFamily(file)) < i) {
+      problems.push(`test.files[${i}].name: "${file.name}" has the same base name as another file; their rungs would share a label`);
+    }
+  });
   const totalRuns = spec.arms.length * spec.seeds.count;
   if (totalRuns > LIMITS.totalRuns.max) {
     problems.push(`seeds.count: ${spec.arms.length} arms × ${spec.seeds.count} seeds = ${totalRuns} runs, allowed at most ${LIMITS.totalRuns.max}`);
