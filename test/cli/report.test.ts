@@ -39,6 +39,8 @@ describe('farfield report', () => {
     expect(externalReferences(html)).toEqual([]);
     // A policy that forbids loading anything, should a future change slip something in.
     expect(html).toContain(`content="default-src 'none'`);
+    // No dates, no random ids: the same results give the same file, byte for byte.
+    expect(farfield('report', results).stdout).toBe(html);
   });
 
   it('holds every figure as inline SVG, the verdict table, the question, fingerprint and share link', () => {
