@@ -98,6 +98,13 @@ describe('saved networks: run --keep-networks, then score', () => {
     expect(r.stderr).toMatch(/differ from the errors the run recorded/);
 
     const manifest = JSON.parse(readFileSync(join(nets, `${stem}.json`), 'utf8')) as Manifest;
+    const resized = structuredClone(manifest);
+    resized.weightsManifest[0]!.weights[0]!.shape = [2, 8];
+    writeFileSync(join(changed, `${stem}.json`), JSON.stringify(resized));
+    const wrongShape = farfield('score', join(changed, `${stem}.json`), '--graphs', states);
+    expect(wrongShape.code).toBe(1);
+    expect(wrongShape.stderr).toMatch(/^farfield score: .*the shard run1-sum-seed3\.bin holds \d+ bytes, the manifest describes \d+\n$/);
+
     manifest.weightsManifest[0]!.paths = ['../../etc/passwd'];
     const outside = join(dir, 'outside.json');
     writeFileSync(outside, JSON.stringify(manifest));

@@ -86,7 +86,13 @@ export async function commandScore(args: string[]): Promise<number> {
     process.stderr.write(`score: the network was trained by farfield ${file.engineVersion}, this is ${ENGINE_VERSION}; the numbers may differ from the recorded ones\n`);
   }
   await initBackend('wasm');
-  const network = loadSavedNetwork(file, data, positionals[0]!);
+  let network;
+  try {
+    network = loadSavedNetwork(file, data, positionals[0]!);
+  } catch (error) {
+    if (error instanceof NetworkFileError) fail(error.message);
+    throw error;
+  }
   try {
     // Own ladder: the spec the network was trained on, whatever graph files are added to it now.
     const score = scoreOnLadder(file, network, ladder, { files: attached.files, own: specHash(base) === file.specHash });
