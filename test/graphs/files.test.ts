@@ -219,7 +219,7 @@ describe('GraphML and GEXF through graphology-graphml and graphology-gexf', () =
     const bad = (name: string, text: string) => refusal(() => readGraphFile({ name }, text)).message;
     expect(bad('b.graphml', GRAPHML.slice(0, GRAPHML.indexOf('<edge source="n2"') + 12))).toMatch(/^b\.graphml, line 12: not well-formed XML: /);
     expect(bad('b.graphml', GRAPHML.replace('target="n3"', 'target="n9"'))).toBe(
-      "b.graphml, line 12: unknown node id 'n9': the file declares 4 nodes and this edge names one of none of them",
+      "b.graphml, line 12: unknown node id 'n9'; allowed one of the 4 node ids the file declares",
     );
     expect(bad('b.gexf', GEXF.replace('source="0" target="2"', 'source="0" target="1"'))).toBe("b.gexf, line 12: duplicate edge '0' -> '1' (first on line 10); each arc may appear once");
     expect(bad('b.gexf', GRAPHML)).toBe('b.gexf, line 1: the root element is <graphml>, expected <gexf> for a GEXF file');

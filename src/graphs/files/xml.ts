@@ -77,7 +77,7 @@ export function readXmlGraph(name: string, text: string, format: 'graphml' | 'ge
     graph = format === 'graphml' ? (parseGraphml(Graph, doc) as unknown as Graph) : (parseGexf(Graph, doc) as unknown as Graph);
   } catch (error) {
     const missing = unknownEndpoint(doc);
-    if (missing) throw new GraphFileError(name, missing.line, `unknown node id '${missing.id}': the file declares ${missing.nodes} nodes and this edge names one of none of them`);
+    if (missing) throw new GraphFileError(name, missing.line, `unknown node id '${missing.id}'; allowed one of the ${missing.nodes} node ids the file declares`);
     throw new GraphFileError(name, null, `the ${format} reader refused the file: ${error instanceof Error ? error.message : String(error)}`);
   }
   if (graph.type === 'mixed') throw new GraphFileError(name, null, 'mixes directed and undirected edges; a graph file must be all one or the other');
