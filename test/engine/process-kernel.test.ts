@@ -34,7 +34,7 @@ function instances(family: string, count: number, weightRange: [number, number],
   const rng = new Rng(seed);
   return Array.from({ length: count }, (_, i) => {
     const r = rng.fork(i);
-    const params = family === 'er' ? { edgeProbability: 0.3 } : {};
+    const params: Record<string, number> = family === 'er' ? { edgeProbability: 0.3 } : {};
     return buildInstance('shortest-path', family, r.int(8, 14), r, { weightRange, params }).instance;
   });
 }
@@ -171,7 +171,7 @@ describe('fused process kernels give the stock composition’s bits', () => {
     ids[3] = batch.nodes + 5;
     const bad = tf.tensor1d(ids, 'int32');
     const before = tf.memory().numTensors;
-    expect(() => tf.tidy(() => network.forward({ ...batch, dst: bad }, { steps: 3 }))).toThrow(/destination id \d+ at edge 3 is out of range/);
+    expect(() => tf.tidy(() => network.forward({ ...batch, dst: bad }, { steps: 3 }).prediction)).toThrow(/destination id \d+ at edge 3 is out of range/);
     expect(tf.memory().numTensors).toBe(before);
     bad.dispose();
     batch.dispose();
