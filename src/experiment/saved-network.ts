@@ -131,7 +131,13 @@ const fileSchema = z.object({
   transforms: z.object({ node: z.array(z.enum(TRANSFORMS)).max(64), edge: z.array(z.enum(TRANSFORMS)).max(64), nodeStats: stats, edgeStats: stats }),
   recorded: z.object({ keptStep: z.number().int().min(0), inDistribution: savedRung.nullable(), ladder: z.array(savedRung).max(256) }),
   weightsManifest: z
-    .array(z.object({ paths: z.array(z.string().min(1).max(200)).length(1), weights: z.array(weightEntry).min(1).max(256) }))
+    .array(
+      z.object({
+        // The shard sits beside the JSON: a bare file name, never a path that could leave its folder.
+        paths: z.array(z.string().min(1).max(200).regex(/^(?!\.\.?$)[^/\\]+$/, 'allowed a file name beside the JSON, no folders')).length(1),
+        weights: z.array(weightEntry).min(1).max(256),
+      }),
+    )
     .length(1),
 });
 

@@ -84,7 +84,7 @@ describe('saved networks: run --keep-networks, then score', () => {
     }
   });
 
-  it('catches a changed shard (exit 1) and a manifest that does not fit the arm', () => {
+  it('catches a changed shard (exit 1) and asks for the content of a graph file the spec names', () => {
     const stem = 'run1-sum-seed3';
     const changed = mkdtempSync(join(dir, 'changed-'));
     copyFileSync(join(nets, `${stem}.json`), join(changed, `${stem}.json`));
@@ -96,21 +96,6 @@ describe('saved networks: run --keep-networks, then score', () => {
     expect(r.code).toBe(1);
     expect(r.stdout).toMatch(/NO/);
     expect(r.stderr).toMatch(/differ from the errors the run recorded/);
-
-    const manifest = JSON.parse(readFileSync(join(nets, `${stem}.json`), 'utf8')) as Manifest;
-    const resized = structuredClone(manifest);
-    resized.weightsManifest[0]!.weights[0]!.shape = [2, 8];
-    writeFileSync(join(changed, `${stem}.json`), JSON.stringify(resized));
-    const wrongShape = farfield('score', join(changed, `${stem}.json`), '--graphs', states);
-    expect(wrongShape.code).toBe(1);
-    expect(wrongShape.stderr).toMatch(/^farfield score: .*the shard run1-sum-seed3\.bin holds \d+ bytes, the manifest describes \d+\n$/);
-
-    manifest.weightsManifest[0]!.paths = ['../../etc/passwd'];
-    const outside = join(dir, 'outside.json');
-    writeFileSync(outside, JSON.stringify(manifest));
-    const escaped = farfield('score', outside);
-    expect(escaped.code).toBe(1);
-    expect(escaped.stderr).toMatch(/weightsManifest\[0\]\.paths\[0\]: got "\.\.\/\.\.\/etc\/passwd", allowed a file name beside the JSON/);
 
     // The spec names a graph file the network JSON cannot carry: its content must be given.
     const missing = farfield('score', join(nets, `${stem}.json`));
