@@ -11,6 +11,7 @@ import { differenceFigure, extrapolationFigure, seedFigure } from './plots.ts';
 import { autoLogReason, curvesCaption, DIFFERENCES_CAPTION, FIGURE_HEADINGS, seedsCaption } from './figure-list.ts';
 import { num } from './format.ts';
 import { controls } from './styles.ts';
+import { armTag, armTagStyles } from './arm-tag.ts';
 import './ff-figure.ts';
 import './ff-verdict-table.ts';
 import './ff-fit-gate.ts';
@@ -45,6 +46,7 @@ export class FfEvidence extends LitElement {
   private readonly widthTracker = new WidthTracker(this);
 
   static override styles = [
+    armTagStyles,
     controls,
     css`
       :host {
@@ -272,7 +274,7 @@ export class FfEvidence extends LitElement {
       ${v.complete ? nothing : html`<p class="partial">Partial evidence: ${v.runsDone} of ${v.runsExpected} runs in. Verdicts use complete seed pairs only.</p>`}
       <ff-fit-gate .gates=${v.gates} note=${v.gateNote}></ff-fit-gate>
       <div class="legend" role="group" aria-label="Legend">
-        ${v.arms.map((a) => html`<span class="key"><span class="swatch" style=${`--c: ${a.color}`}></span>${a.name}</span>`)}
+        ${v.arms.map((a) => html`<span class="key">${armTag(a.index, a.name)}</span>`)}
         <span class="train"><i></i>training sizes ${v.trainSizes[0]}–${v.trainSizes[1]} (◇ in-distribution error)</span>
         ${hasBaselines ? html`${refKey('7 4', 'best constant')}${refKey('2 3', 'training constant')}` : nothing}
         <label><input type="checkbox" .checked=${this.logY} @change=${(e: Event) => (this.logChoice = (e.target as HTMLInputElement).checked)} aria-label="Log scale for errors" />log scale</label>

@@ -17,6 +17,7 @@ import { ProbeController } from './probe-controller.ts';
 import { probeFigure, type ArmProbe } from './probe-plots.ts';
 import { armColor } from './palette.ts';
 import { controls } from './styles.ts';
+import { armTag, armTagStyles } from './arm-tag.ts';
 import { duration } from './format.ts';
 import type { AuditArm } from './ff-audit-table.ts';
 import type { ArmTrace } from './ff-trace.ts';
@@ -60,6 +61,7 @@ export class FfProbes extends LitElement {
   private notice: string | null = null;
 
   static override styles = [
+    armTagStyles,
     controls,
     css`
       :host {
@@ -240,7 +242,7 @@ export class FfProbes extends LitElement {
         title = p.title;
         note ||= p.unavailable ? '' : p.note;
         if (p.unavailable || !p.points.length) missing.push(`${entry.arm}: ${p.unavailable ?? 'no points'}`);
-        else per.push({ arm: entry.arm, color: armColor(entry.armIndex), probe: p });
+        else per.push({ arm: entry.arm, index: entry.armIndex, color: armColor(entry.armIndex), probe: p });
       }
       return { kind, title, note, missing, figure: per.length ? probeFigure(per, { width: w }) : null };
     });
@@ -300,7 +302,7 @@ export class FfProbes extends LitElement {
         ${failed.length ? html`<br />Not probed: ${failed.join('; ')}.` : nothing}
       </p>
       <div class="key" role="group" aria-label="Probe legend">
-        ${doc.arms.map((a) => html`<span><i style=${`--c: ${armColor(a.armIndex)}`}></i>${a.arm} predicted</span>`)}
+        ${doc.arms.map((a) => html`<span>${armTag(a.armIndex, a.arm, ' predicted')}</span>`)}
         <span><i class="dash"></i>exact truth</span>
         <span class="muted"><i class="band"></i>seen in training</span>
       </div>

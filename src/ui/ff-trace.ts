@@ -104,7 +104,7 @@ export class FfTrace extends LitElement {
         gap: 0.3em;
         align-items: center;
         font-weight: 600;
-        color: var(--c);
+        border-bottom: 3px solid var(--c);
       }
       .strip {
         display: block;

@@ -29,3 +29,22 @@ export function duration(seconds: number): string {
   if (minutes < 90) return `${Math.round(minutes)} min`;
   return `${(minutes / 60).toFixed(1)} h`;
 }
+
+/**
+ * An axis tick in plain decimals: 0.01, 0.1, 1, 10, 1000 (never "10m" or
+ * "1e-5": an SI suffix reads as a unit, metres or minutes, on an error axis).
+ */
+export function plainNumber(x: number): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  let text: string;
+  if (a >= 1e4) text = Math.round(x).toLocaleString('en-US');
+  else if (a >= 1) text = String(Number(x.toPrecision(6)));
+  else {
+    // Four significant digits, written out: 0.0001235 rather than 1.235e-4.
+    const digits = Math.min(20, Math.ceil(-Math.log10(a)) + 3);
+    text = Number(x.toPrecision(4)).toFixed(digits).replace(/\.?0+$/, '');
+  }
+  return text.replace('-', '−');
+}

@@ -8,7 +8,7 @@
  * deuteranopia and tritanopia, and every colour reaches 3:1 against paper and
  * card (WCAG non-text contrast); test/ui/palette.test.ts checks both. The
  * first two arms are teal and plum (no orange-versus-blue pair). Shapes and
- * dashes cycle with other periods than the colours (8, 7, 5), so arms 9 and
+ * dashes cycle with other periods than the colours (8, 6, 5), so arms 9 and
  * up still differ from arm 1 in shape and dash.
  */
 export const PAPER = '#f4eee1';
@@ -22,8 +22,8 @@ export const DANGER = '#9c2f22';
 
 export const ARM_COLORS = ['#27634d', '#5d205b', '#a67622', '#533a9d', '#841100', '#6d8a59', '#a672cf', '#0e928f'] as const;
 
-/** Observable Plot symbol names (they also name the marker drawn in keys and tables). */
-export const ARM_SYMBOLS = ['circle', 'square', 'triangle', 'diamond', 'star', 'cross', 'wye'] as const;
+/** Observable Plot symbol names (figure-key.ts draws the same shapes in keys). No diamond: the figures use it for in-distribution errors. */
+export const ARM_SYMBOLS = ['circle', 'square', 'triangle', 'star', 'cross', 'wye'] as const;
 export type ArmSymbol = (typeof ARM_SYMBOLS)[number];
 
 /** SVG stroke-dasharray values; the first arm draws solid. */

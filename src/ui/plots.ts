@@ -6,8 +6,9 @@
  */
 import * as Plot from '@observablehq/plot';
 import type { BaselinePoint, BlownUpPoint, CurvePoint, DiffPoint, EvidenceView, LadderRow, SeedPoint } from './evidence.ts';
-import { CARD, DANGER, INK, MUTED, RULE, TRAIN_BAND } from './palette.ts';
-import { num } from './format.ts';
+import { CARD, DANGER, INK, MUTED, PAPER, RULE, TRAIN_BAND, armDash, armLetter, armSymbol } from './palette.ts';
+import { num, plainNumber } from './format.ts';
+import { drawKey, keyEntries, keyHeight } from './figure-key.ts';
 
 export const FIGURE_FONT = "system-ui, -apple-system, 'Segoe UI', 'Liberation Sans', 'DejaVu Sans', sans-serif";
 
@@ -30,6 +31,51 @@ function fontSizeFor(width: number): number {
 function colorScale(view: EvidenceView) {
   return { domain: view.arms.map((a) => a.name), range: view.arms.map((a) => a.color) };
 }
+
+/** Each arm's marker shape (palette.ts), so no reader depends on colour alone. */
+function symbolScale(view: EvidenceView) {
+  return { domain: view.arms.map((a) => a.name), range: view.arms.map((a) => armSymbol(a.index)) };
+}
+
+function letterOf(view: EvidenceView, name: string): string {
+  const arm = view.arms.find((a) => a.name === name);
+  return arm ? armLetter(arm.index) : name;
+}
+
+/** The key every figure carries inside its SVG, and the room it takes at the top. */
+function figureKey(view: EvidenceView, options: FigureOptions, fontSize: number) {
+  const entries = keyEntries(view.arms);
+  const height = keyHeight(entries, options.width, fontSize);
+  return {
+    height,
+    draw: <T extends Element>(figure: T): T => {
+      drawKey(figure, entries, { width: options.width, fontSize });
+      return figure;
+    },
+  };
+}
+
+/**
+ * Vertical nudges (px) for labels at line ends, so the letters of arms that
+ * end close together stack instead of overprinting: values within 6% of the
+ * axis span form a cluster, spread one text line apart around its middle.
+ */
+export function endLabelNudges(values: readonly number[], span: number, lineHeight: number): number[] {
+  const order = values.map((v, i) => ({ v, i })).sort((a, b) => b.v - a.v);
+  const nudges = new Array<number>(values.length).fill(0);
+  let start = 0;
+  for (let k = 1; k <= order.length; k++) {
+    if (k === order.length || !(Math.abs(order[k - 1]!.v - order[k]!.v) < 0.06 * span)) {
+      const size = k - start;
+      for (let j = start; j < k; j++) nudges[order[j]!.i] = (j - start - (size - 1) / 2) * lineHeight;
+      start = k;
+    }
+  }
+  return nudges;
+}
+
+/** Plain decimals on an error axis (a log axis would otherwise print "10m"). */
+const errorTicks = { tickFormat: plainNumber };
 
 function ladderAt(view: EvidenceView, size: number, scale = 1): LadderRow | undefined {
   return view.ladder.find((r) => r.size === size && r.scale === scale) ?? view.ladder.find((r) => r.size === size);
@@ -111,14 +157,42 @@ export function extrapolationFigure(view: EvidenceView, options: FigureOptions):
     ];
   });
   const clipNote = clipAt === null ? [] : [Plot.text([0], { frameAnchor: 'top-right', dx: -8, dy: 38, text: () => '▲ best / △ training constant above the axis (log scale shows them)', fill: MUTED, fontSize: fontSize - 3, textAnchor: 'end' })];
-  return Plot.plot({
+  const key = figureKey(view, options, fontSize);
+  // Each arm's line in its own dash pattern, and its letter at the line's end (largest size, per facet).
+  const armLines = view.arms.map((a) =>
+    Plot.lineY(
+      view.curves.filter((c) => c.arm === a.name),
+      { x: 'size', y: 'mean', z: 'scale', stroke: a.color, strokeWidth: 2.5, strokeDasharray: armDash(a.index), ...facet },
+    ),
+  );
+  const ends = [
+    ...view.curves
+      .filter((c) => Number.isFinite(c.mean))
+      .reduce((m, c) => {
+        const k = `${c.arm}|${c.scale}`;
+        if (!m.has(k) || m.get(k)!.size < c.size) m.set(k, c);
+        return m;
+      }, new Map<string, CurvePoint>())
+      .values(),
+  ];
+  const onAxis = (v: number) => (logY ? Math.log10(Math.max(v, 1e-12)) : v);
+  const shown = view.curves.flatMap((c) => [c.low, c.high]).filter((v) => Number.isFinite(v) && (!logY || v > 0)).map(onAxis);
+  const span = clipAt !== null ? clipAt : shown.length ? Math.max(...shown) - Math.min(logY ? Infinity : 0, ...shown) || 1 : 1;
+  const endLabels = view.scales.flatMap((scale) => {
+    const here = ends.filter((e) => e.scale === scale);
+    const nudges = endLabelNudges(here.map((e) => onAxis(e.mean)), span, fontSize + 1);
+    return here.map((e, i) =>
+      Plot.text([e], { x: 'size', y: 'mean', text: (d: CurvePoint) => letterOf(view, d.arm), dx: 9, dy: nudges[i]!, textAnchor: 'start', fontWeight: 700, fill: INK, stroke: PAPER, strokeWidth: 3, paintOrder: 'stroke', ...facet }),
+    );
+  });
+  return key.draw(Plot.plot({
     document: options.document,
     width: options.width,
     height: Math.round(Math.min(520, Math.max(300, options.width * 0.4))),
     marginLeft: 64,
     marginBottom: 56,
-    marginTop: scales ? 36 : 30,
-    marginRight: 24,
+    marginTop: (scales ? 36 : 30) + key.height,
+    marginRight: 40,
     style: style(fontSize),
     ariaLabel: `Extrapolation curves: ${view.metricLabel} against test graph size for ${view.arms.map((a) => a.name).join(', ')}, with the best constant and the training constant as reference lines`,
     x: {
@@ -136,18 +210,21 @@ export function extrapolationFigure(view: EvidenceView, options: FigureOptions):
       nice: true,
       zero: !logY,
       ...(clipAt === null ? {} : { domain: [0, clipAt] }),
+      ...errorTicks,
       label: `↓ ${view.metricLabel} (lower is better)`,
     },
     fx: scales ? { label: null } : undefined,
     color: colorScale(view),
+    symbol: symbolScale(view),
     marks: [
       Plot.rect([{ x1: trainLo, x2: trainHi }], { x1: 'x1', x2: 'x2', fill: TRAIN_BAND, fillOpacity: 0.7 }),
       Plot.text([{ x: mid }], { x: 'x', frameAnchor: 'top', dy: 6, text: () => 'training range', fill: MUTED, fontSize: fontSize - 2 }),
       ...refMarks,
       ...clipNote,
       Plot.areaY(view.curves, { x: 'size', y1: 'low', y2: 'high', z: 'arm', fill: 'arm', fillOpacity: 0.16, ...facet }),
-      Plot.lineY(view.curves, { x: 'size', y: 'mean', z: 'arm', stroke: 'arm', strokeWidth: 2.5, ...facet }),
-      Plot.dot(view.curves, { x: 'size', y: 'mean', fill: 'arm', r: 4.5, stroke: '#fff', strokeWidth: 1, ...facet }),
+      ...armLines,
+      Plot.dot(view.curves, { x: 'size', y: 'mean', fill: 'arm', symbol: 'arm', r: 4.5, stroke: '#fff', strokeWidth: 1, ...facet }),
+      ...endLabels,
       Plot.ruleX(inDist, { x: 'size', y1: 'low', y2: 'high', stroke: 'arm', strokeWidth: 2 }),
       Plot.dot(inDist, { x: 'size', y: 'mean', stroke: 'arm', fill: '#fbf8f0', strokeWidth: 2, r: 4.5, symbol: 'diamond' }),
       Plot.frame({ stroke: RULE }),
@@ -159,11 +236,11 @@ export function extrapolationFigure(view: EvidenceView, options: FigureOptions):
           stroke: 'arm',
           ...facet,
           title: (d: CurvePoint) =>
-            `${d.arm} at n = ${d.size}\nmean ${num(d.mean)} [${num(d.low)}, ${num(d.high)}]\n${d.n} seed${d.n === 1 ? '' : 's'}${d.blownUp ? `; ${d.blownUp} more blew up (ranked worst, not in this mean)` : ''}`,
+            `${letterOf(view, d.arm)} (${d.arm}) at n = ${d.size}\nmean ${num(d.mean)} [${num(d.low)}, ${num(d.high)}]\n${d.n} seed${d.n === 1 ? '' : 's'}${d.blownUp ? `; ${d.blownUp} more blew up (ranked worst, not in this mean)` : ''}`,
         }),
       ),
     ],
-  });
+  }));
 }
 
 /** The paired difference (A − B) per size with its interval; below zero A has the lower error. */
@@ -178,8 +255,10 @@ export function differenceFigure(view: EvidenceView, options: FigureOptions): SV
     if (d.kind === 'b-better') return view.arms.find((a) => a.name === d.b)?.color ?? INK;
     return MUTED;
   };
+  // Pairs by letter code ("A − B"): long arm names would overprint the facet labels.
+  const pairLabel = (d: DiffPoint) => `${letterOf(view, d.a)} − ${letterOf(view, d.b)}`;
   const facet = {
-    ...(facetRows ? { fy: 'pair' } : {}),
+    ...(facetRows ? { fy: pairLabel } : {}),
     ...(scales ? { fx: (d: DiffPoint) => `weights ×${d.scale}` } : {}),
   };
   // With a run that blew up the mean difference is infinite (or undefined): a × and words at the edge
@@ -199,14 +278,15 @@ export function differenceFigure(view: EvidenceView, options: FigureOptions): SV
       Plot.text(data, { x: 'size', frameAnchor, dy: side === 1 ? 24 : side === -1 ? -24 : 14, text: 'blownUp', fill: DANGER, fontSize: fontSize - 3, lineWidth: 9, ...facet }),
     ];
   });
-  return Plot.plot({
+  const key = figureKey(view, options, fontSize);
+  return key.draw(Plot.plot({
     document: options.document,
     width: options.width,
-    height: options.height ?? Math.max(240, facetRows ? pairs.length * 150 + 60 : 320),
+    height: (options.height ?? Math.max(240, facetRows ? pairs.length * 150 + 60 : 320)) + key.height,
     marginLeft: 64,
     marginBottom: 56,
-    marginRight: facetRows ? 110 : 24,
-    marginTop: scales ? 36 : 30,
+    marginRight: facetRows ? 64 : 24,
+    marginTop: (scales ? 36 : 30) + key.height,
     style: style(fontSize),
     ariaLabel: `Paired difference of ${view.metricLabel} between arms, per test size, with 95% intervals`,
     x: {
@@ -218,7 +298,15 @@ export function differenceFigure(view: EvidenceView, options: FigureOptions): SV
       labelAnchor: 'center',
       labelOffset: 50,
     },
-    y: { grid: true, nice: true, ...(finite.length ? {} : { domain: [-1, 1] }), label: pairs.length === 1 ? `${pairs[0]}: difference in ${view.metric} (below 0: ${rows[0]?.a ?? 'A'} better)` : `difference in ${view.metric} (A − B; below 0: A better)` },
+    y: {
+      grid: true,
+      nice: true,
+      ...(finite.length ? {} : { domain: [-1, 1] }),
+      label:
+        pairs.length === 1 && rows[0]
+          ? `${pairLabel(rows[0])}: difference in ${view.metric} (below 0: ${letterOf(view, rows[0].a)} better)`
+          : `difference in ${view.metric} (1st − 2nd; below 0: the 1st better)`,
+    },
     fy: facetRows ? { label: null } : undefined,
     fx: scales ? { label: null } : undefined,
     marks: [
@@ -228,9 +316,9 @@ export function differenceFigure(view: EvidenceView, options: FigureOptions): SV
       Plot.dot(finite, { x: 'size', y: 'estimate', fill: tone, r: 5, stroke: '#fff', ...facet }),
       ...blownMarks,
       Plot.frame({ stroke: RULE }),
-      Plot.tip(finite, Plot.pointerX({ x: 'size', y: 'estimate', ...facet, title: (d: DiffPoint) => `${d.pair} at n = ${d.size}\n${num(d.estimate)} [${num(d.low)}, ${num(d.high)}]\n${d.n} pair${d.n === 1 ? '' : 's'}` })),
+      Plot.tip(finite, Plot.pointerX({ x: 'size', y: 'estimate', ...facet, title: (d: DiffPoint) => `${pairLabel(d)} (${d.pair}) at n = ${d.size}\n${num(d.estimate)} [${num(d.low)}, ${num(d.high)}]\n${d.n} pair${d.n === 1 ? '' : 's'}` })),
     ],
-  });
+  }));
 }
 
 /** Every seed's error, arms side by side at each size, paired seeds joined by a line. */
@@ -241,29 +329,33 @@ export function seedFigure(view: EvidenceView, options: FigureOptions): SVGSVGEl
   const label = (s: { size: number; scale: number }) => (view.scales.length > 1 ? `n = ${s.size}, ×${s.scale}` : `n = ${s.size}`);
   const cells: Array<{ size: number; scale: number }> = [...view.seeds, ...view.blownUp];
   const order = [...new Set(cells.slice().sort((a, b) => a.size - b.size || a.scale - b.scale).map(label))];
-  return Plot.plot({
+  const key = figureKey(view, options, fontSize);
+  // Arms by letter code along each size's axis: names would overprint with many arms; the key names them.
+  const armX = (d: { arm: string }) => letterOf(view, d.arm);
+  return key.draw(Plot.plot({
     document: options.document,
     width: options.width,
-    height: options.height ?? Math.round(Math.min(380, Math.max(260, options.width * 0.42))),
+    height: (options.height ?? Math.round(Math.min(380, Math.max(260, options.width * 0.42)))) + key.height,
     marginLeft: 64,
     marginBottom: 44,
-    marginTop: 34,
+    marginTop: 34 + key.height,
     style: style(fontSize),
     ariaLabel: `Per-seed ${view.metricLabel} for each arm at each test size`,
     fx: { domain: order, label: null },
-    x: { domain: view.arms.map((a) => a.name), label: null, padding: 0.4 },
+    x: { domain: view.arms.map((a) => armLetter(a.index)), label: null, padding: 0.4 },
     // Room at the top for the × and words of runs that blew up.
-    y: { type: logY ? 'log' : 'linear', grid: true, nice: true, zero: !logY, insetTop: view.blownUp.length ? 50 : 0, label: `↓ ${view.metric} per seed` },
+    y: { type: logY ? 'log' : 'linear', grid: true, nice: true, zero: !logY, insetTop: view.blownUp.length ? 50 : 0, label: `↓ ${view.metric} per seed`, ...errorTicks },
     color: colorScale(view),
+    symbol: symbolScale(view),
     marks: [
       Plot.frame({ stroke: RULE }),
-      Plot.line(view.seeds, { fx: label, x: 'arm', y: 'value', z: (d: SeedPoint) => `${d.seed}|${label(d)}`, stroke: MUTED, strokeOpacity: 0.45, strokeWidth: 1 }),
-      Plot.dot(view.seeds, { fx: label, x: 'arm', y: 'value', fill: 'arm', r: 4.5, stroke: '#fff', strokeWidth: 0.8 }),
+      Plot.line(view.seeds, { fx: label, x: armX, y: 'value', z: (d: SeedPoint) => `${d.seed}|${label(d)}`, stroke: MUTED, strokeOpacity: 0.45, strokeWidth: 1 }),
+      Plot.dot(view.seeds, { fx: label, x: armX, y: 'value', fill: 'arm', symbol: 'arm', r: 4.5, stroke: '#fff', strokeWidth: 0.8 }),
       // Runs that blew up have no value: a × at the top of their column, with words, so they never vanish.
-      Plot.dot(view.blownUp, { fx: label, x: 'arm', frameAnchor: 'top', dy: 10, symbol: 'times', r: 5, stroke: DANGER, strokeWidth: 2.2 }),
+      Plot.dot(view.blownUp, { fx: label, x: armX, frameAnchor: 'top', dy: 10, symbol: 'times', r: 5, stroke: DANGER, strokeWidth: 2.2 }),
       Plot.text(view.blownUp, {
         fx: label,
-        x: 'arm',
+        x: armX,
         frameAnchor: 'top',
         dy: 22,
         lineAnchor: 'top',
@@ -272,8 +364,8 @@ export function seedFigure(view: EvidenceView, options: FigureOptions): SVGSVGEl
         fontSize: fontSize - 3,
         title: (d: BlownUpPoint) => `${d.arm}: seed${d.seeds.length === 1 ? '' : 's'} ${d.seeds.join(', ')} blew up (diverged, failed or a non-finite error); ranked as the worst outcome in the paired tests`,
       }),
-      Plot.tip(view.seeds, Plot.pointer({ fx: label, x: 'arm', y: 'value', title: (d: SeedPoint) => `${d.arm}, seed ${d.seed}\n${view.metric} ${num(d.value)}` })),
+      Plot.tip(view.seeds, Plot.pointer({ fx: label, x: armX, y: 'value', title: (d: SeedPoint) => `${armX(d)} (${d.arm}), seed ${d.seed}\n${view.metric} ${num(d.value)}` })),
     ],
     caption: sizes.length === 0 && view.blownUp.length === 0 ? 'no finished runs yet' : undefined,
-  });
+  }));
 }

@@ -8,12 +8,15 @@
 import * as Plot from '@observablehq/plot';
 import type { Probe, ProbePoint } from '../inspect/probe.ts';
 import type { AlignmentTrace } from '../inspect/trace.ts';
-import { CARD, INK, MUTED, RULE, TRAIN_BAND } from './palette.ts';
-import { FIGURE_FONT } from './plots.ts';
-import { num } from './format.ts';
+import { CARD, INK, MUTED, PAPER, RULE, TRAIN_BAND, armDash, armLetter, armSymbol } from './palette.ts';
+import { FIGURE_FONT, endLabelNudges } from './plots.ts';
+import { num, plainNumber } from './format.ts';
+import { drawKey, keyEntries, keyHeight } from './figure-key.ts';
 
 export interface ArmProbe {
   arm: string;
+  /** The arm's position in the spec: its letter, colour, marker and dash. */
+  index: number;
   color: string;
   probe: Probe;
 }
@@ -53,18 +56,36 @@ export function probeFigure(probes: readonly ArmProbe[], options: { width: numbe
   const band = lo === hi ? (logX ? { x1: lo / 1.12, x2: hi * 1.12 } : { x1: lo - (domain[1] - domain[0]) * 0.008, x2: hi + (domain[1] - domain[0]) * 0.008 }) : { x1: lo, x2: hi };
   const bandLabel = lo === hi ? `trained at ${num(lo, 3)}` : 'training range';
   const colors = { domain: [...usable.map((p) => p.arm), TRUTH], range: [...usable.map((p) => p.color), INK] };
-  return Plot.plot({
+  const symbols = { domain: usable.map((p) => p.arm), range: usable.map((p) => armSymbol(p.index)) };
+  const entries = keyEntries(usable.map((p) => ({ name: p.arm, index: p.index })));
+  const keyRoom = keyHeight(entries, options.width, fontSize);
+  // Each arm's letter at the end of its line (largest x).
+  const ends = usable.flatMap((p) => {
+    const rows = predicted.filter((r) => r.series === p.arm);
+    const last = rows.reduce<Row | null>((m, r) => (m === null || r.x > m.x ? r : m), null);
+    return last ? [{ ...last, letter: armLetter(p.index) }] : [];
+  });
+  const onAxis = (v: number) => (logY ? Math.log10(Math.max(v, 1e-12)) : v);
+  const axisValues = ys.map(onAxis);
+  const nudges = endLabelNudges(
+    ends.map((e) => onAxis(e.predicted)),
+    axisValues.length ? Math.max(...axisValues) - Math.min(...axisValues) || 1 : 1,
+    fontSize + 1,
+  );
+  const figure = Plot.plot({
     width: options.width,
-    height: options.height ?? Math.round(Math.min(340, Math.max(250, options.width * 0.62))),
+    height: (options.height ?? Math.round(Math.min(340, Math.max(250, options.width * 0.62)))) + keyRoom,
     marginLeft: 58,
-    marginRight: 18,
-    marginTop: 30,
+    marginRight: 30,
+    marginTop: 30 + keyRoom,
     marginBottom: 46,
     style: { fontFamily: FIGURE_FONT, fontSize: `${fontSize}px`, background: 'transparent', color: INK, overflow: 'visible' },
     ariaLabel: `${first.title}: predicted by ${usable.map((p) => p.arm).join(', ')} against exact truth; ${first.xLabel}`,
-    x: { type: logX ? 'log' : 'linear', domain, label: `${axisLabel(first.xLabel, options.width)} →`, labelAnchor: 'center', labelOffset: 38, ...(logX ? { ticks: 5 } : {}) },
-    y: { type: logY ? 'log' : 'linear', grid: true, nice: true, label: `↑ ${first.yLabel}` },
+    // Plain decimals on both axes: a log axis would otherwise print "10m / 100m", which reads as metres.
+    x: { type: logX ? 'log' : 'linear', domain, label: `${axisLabel(first.xLabel, options.width)} →`, labelAnchor: 'center', labelOffset: 38, tickFormat: plainNumber, ...(logX ? { ticks: 5 } : {}) },
+    y: { type: logY ? 'log' : 'linear', grid: true, nice: true, label: `↑ ${first.yLabel}`, tickFormat: plainNumber },
     color: colors,
+    symbol: symbols,
     marks: [
       Plot.rect([band], { x1: 'x1', x2: 'x2', fill: TRAIN_BAND, fillOpacity: 0.85 }),
       Plot.text([{ x: lo === hi ? band.x2 : logX ? Math.sqrt(band.x1 * band.x2) : (band.x1 + band.x2) / 2 }], {
@@ -79,8 +100,9 @@ export function probeFigure(probes: readonly ArmProbe[], options: { width: numbe
       }),
       Plot.lineY(truth, { x: 'x', y: 'truth', stroke: INK, strokeWidth: 1.6, strokeDasharray: '5 4' }),
       Plot.dot(truth, { x: 'x', y: 'truth', fill: INK, r: 2.2 }),
-      Plot.lineY(predicted, { x: 'x', y: 'predicted', z: 'series', stroke: 'series', strokeWidth: 2.4 }),
-      Plot.dot(predicted, { x: 'x', y: 'predicted', fill: 'series', r: 3.6, stroke: CARD, strokeWidth: 1 }),
+      ...usable.map((p) => Plot.lineY(predicted.filter((r) => r.series === p.arm), { x: 'x', y: 'predicted', stroke: p.color, strokeWidth: 2.4, strokeDasharray: armDash(p.index) })),
+      Plot.dot(predicted, { x: 'x', y: 'predicted', fill: 'series', symbol: 'series', r: 3.6, stroke: CARD, strokeWidth: 1 }),
+      ...ends.map((e, i) => Plot.text([e], { x: 'x', y: 'predicted', text: 'letter', dx: 8, dy: nudges[i]!, textAnchor: 'start', fontWeight: 700, fill: INK, stroke: PAPER, strokeWidth: 3, paintOrder: 'stroke' })),
       Plot.frame({ stroke: RULE }),
       Plot.tip(
         predicted,
@@ -93,6 +115,8 @@ export function probeFigure(probes: readonly ArmProbe[], options: { width: numbe
       ),
     ],
   });
+  drawKey(figure, entries, { width: options.width, fontSize });
+  return figure;
 }
 
 const SVG_NS = 'http://www.w3.org/2000/svg';

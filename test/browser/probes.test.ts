@@ -61,6 +61,12 @@ describe.skipIf(!existsSync(CHROMIUM))('probe the networks: probes, audit and al
     expect(await probes.locator('[data-probe-error]').count()).toBe(0);
     expect(await probes.locator('[data-probe]').count()).toBe(3);
     await expect.poll(() => probes.locator('[data-probe] ff-figure svg').count()).toBeGreaterThanOrEqual(3);
+    // Each probe figure names its arms inside the SVG (letter, marker, dash), and its ticks are plain decimals, never "10m".
+    const keys = probes.locator('[data-probe] ff-figure svg g[data-key="arms"]');
+    expect(await keys.count()).toBe(3);
+    for (const text of await keys.allTextContents()) expect(text.replace(/\s+/g, ' ')).toMatch(/A max.*B sum/);
+    const texts = await probes.locator('[data-probe] ff-figure svg text').allTextContents();
+    expect(texts.filter((t) => /^[−-]?\d+(\.\d+)?[mµμkMG]$/.test(t.trim()))).toEqual([]);
     // Every arm has audit rows, each with a pass mark.
     const rows = probes.locator('ff-audit-table tbody tr');
     expect(await rows.count()).toBeGreaterThanOrEqual(2);

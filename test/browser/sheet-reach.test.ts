@@ -112,6 +112,10 @@ describe.skipIf(!existsSync(CHROMIUM))('the sheet at every width and for every r
     await waitState(page, 'done');
     await page.waitForSelector('ff-evidence ff-verdict-table');
     await expectNoSidewaysScroll(page, 'six arms, done, 390 px');
+    // Every figure carries its own key of the six arms (letter, marker, dash), so an exported figure still says which is which.
+    const keys = page.locator('ff-evidence ff-figure svg g[data-key="arms"]');
+    expect(await keys.count()).toBe(3);
+    for (const text of await keys.allTextContents()) expect(text.replace(/\s+/g, ' ')).toMatch(/A max aggregation.*F smooth-min aggregation/);
     // Narrow: each rung's verdict is a card whose values are labelled, not a wide table.
     const cell = page.locator('ff-verdict-table table.verdicts td[data-p-raw]').first();
     expect(await cell.evaluate((el) => getComputedStyle(el).display)).toBe('grid');
