@@ -33,6 +33,8 @@ export interface ReportOptions {
   linkBase?: string;
   /** Width of every figure in CSS pixels; 720 fits an A4 page's text column. */
   figureWidth?: number;
+  /** The fingerprint is the one the file recorded and could not be recomputed (see results-file.ts). */
+  fingerprintUnverified?: boolean;
 }
 
 const ESCAPES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' };
@@ -220,10 +222,13 @@ function baselinesTable(view: EvidenceView): string {
   </table>`;
 }
 
-function reproduceSection(doc: ResultsDocument, link: string | null, linkError: string | null): string {
+function reproduceSection(doc: ResultsDocument, link: string | null, linkError: string | null, unverified: boolean): string {
   const e = doc.engine;
+  const how = unverified
+    ? "as recorded: some errors are not finite numbers, which a results file cannot hold, so it could not be recomputed here"
+    : "every run's rounded errors; not times or machines";
   const body = `<dl class="kv">
-      <dt>results fingerprint</dt><dd><code class="fp" data-fingerprint>${esc(doc.fingerprint)}</code> <span class="muted">(every run's rounded errors; not times or machines)</span></dd>
+      <dt>results fingerprint</dt><dd><code class="fp" data-fingerprint>${esc(doc.fingerprint)}</code> <span class="muted">(${how})</span></dd>
       <dt>spec hash</dt><dd><code>${esc(doc.specHash)}</code></dd>
       <dt>runs</dt><dd>${doc.runs.length} of ${doc.runsExpected}${doc.shard ? ` (shard ${doc.shard.index}/${doc.shard.count})` : ''}</dd>
       <dt>engine</dt><dd>farfield ${esc(e.version)} on ${esc(e.backend)}, ${e.threads} thread${e.threads === 1 ? '' : 's'} per worker, ${esc(e.host)}</dd>
@@ -272,7 +277,7 @@ ${section('answer', '§1', 'The answer', answer(view))}
 ${armsSection(spec, view)}
 ${setupSection(spec, view)}
 ${section('evidence', '§4', 'Evidence', evidence)}
-${reproduceSection(doc, link, linkError)}
+${reproduceSection(doc, link, linkError, Boolean(options.fingerprintUnverified))}
 </main>
 </body>
 </html>

@@ -10,7 +10,10 @@
  *
  * JSON has no NaN or Infinity: `JSON.stringify` writes both as null, so a
  * metric may read back as null; it becomes NaN (not a finite number), which
- * the comparison ranks as a blow-up exactly as it did before saving.
+ * the comparison ranks as a blow-up exactly as it did before saving. The
+ * fingerprint, though, tells NaN from Infinity, and null no longer does: when
+ * a file holds such nulls, its recorded fingerprint cannot be recomputed, so
+ * it is kept as recorded and marked unverified rather than replaced.
  */
 import { z } from 'zod';
 import { buildResults, RESULTS_KIND, type EngineInfo, type ResultsDocument } from '../experiment/results.ts';
@@ -101,8 +104,16 @@ const fileSchema = z.object({
 
 export interface ReadResults {
   doc: ResultsDocument;
-  /** The fingerprint the file carried, when it differs from the one recomputed from its runs. */
+  /** The fingerprint the file carried, when it differs from the one recomputed from its runs (then `doc` holds the recomputed one). */
   fingerprintMismatch: string | null;
+  /** The file's runs hold non-finite errors (null in JSON), so its recorded fingerprint, kept in `doc`, could not be checked. */
+  fingerprintUnverified: boolean;
+}
+
+/** Whether any recorded error of the runs is not a finite number (null in the file). */
+function holdsNonFinite(runs: readonly RunResult[]): boolean {
+  const bad = (m: { mae: number; mre: number; miss: number } | null | undefined) => m != null && ![m.mae, m.mre, m.miss].every(Number.isFinite);
+  return runs.some((r) => bad(r.inDistribution) || r.ladder.some((l) => bad(l.metrics)));
 }
 
 /** Parse, check and recompute a results document; every refusal names the file and the field. */
@@ -138,5 +149,7 @@ export function readResultsText(text: string, origin: string): ReadResults {
   });
   const doc = buildResults(spec, runs, parsed.data.engine as EngineInfo, parsed.data.shard);
   const carried = parsed.data.fingerprint;
-  return { doc, fingerprintMismatch: carried && carried !== doc.fingerprint ? carried : null };
+  if (!carried || carried === doc.fingerprint) return { doc, fingerprintMismatch: null, fingerprintUnverified: false };
+  if (holdsNonFinite(runs)) return { doc: { ...doc, fingerprint: carried }, fingerprintMismatch: null, fingerprintUnverified: true };
+  return { doc, fingerprintMismatch: carried, fingerprintUnverified: false };
 }

@@ -33,14 +33,17 @@ export async function commandReport(args: string[]): Promise<number> {
   const { values, positionals } = parse(args, { out: { type: 'string' }, base: { type: 'string' } });
   if (positionals.length !== 1) throw new UsageError(USAGE);
   if (values.base !== undefined && !/^https?:\/\/\S+$/.test(values.base)) throw new UsageError(`--base: got "${values.base}", allowed an http(s) address of the sheet`);
-  const { doc, fingerprintMismatch } = readResultsFile(positionals[0]!);
+  const { doc, fingerprintMismatch, fingerprintUnverified } = readResultsFile(positionals[0]!);
+  if (fingerprintUnverified) {
+    process.stderr.write(`report: some errors in the file are not finite numbers, which JSON stores as null; its fingerprint ${doc.fingerprint} is shown as recorded, unchecked\n`);
+  }
   if (fingerprintMismatch) {
     process.stderr.write(`report: the file says fingerprint ${fingerprintMismatch}, its runs give ${doc.fingerprint}; the report shows ${doc.fingerprint}\n`);
   }
   // Loaded here, not at the top: every other command would pay for the figure code at start-up.
   const [{ parseHTML }, { buildReport }] = await Promise.all([import('linkedom'), import('../../report/report.ts')]);
   const { document } = parseHTML('<!doctype html><html><head></head><body></body></html>');
-  const html = await buildReport(doc, { document: document as unknown as Document, ...(values.base ? { linkBase: values.base } : {}) });
+  const html = await buildReport(doc, { document: document as unknown as Document, fingerprintUnverified, ...(values.base ? { linkBase: values.base } : {}) });
   if (values.out) {
     writeFileSync(values.out, html);
     process.stderr.write(`report: wrote ${values.out} (${Math.round(html.length / 1024)} kB; opens offline, prints to A4)\n`);
