@@ -30,7 +30,7 @@ h3 { font-size: 1.02em; margin: 1.1em 0 0.4em; }
 .arm h3 { margin: 0.3em 0; font-size: 1.1em; }
 .arm .note { font-style: italic; margin: 0.2em 0; }
 .gate[data-gate='not-fitted'] strong { color: ${DANGER}; }
-.swatch { display: inline-block; width: 1.4em; height: 0.45em; border-radius: 2px; margin-right: 0.4em; vertical-align: middle; print-color-adjust: exact; -webkit-print-color-adjust: exact; }
+.arm-tag { white-space: nowrap; text-decoration: underline 3px; text-underline-offset: 3px; print-color-adjust: exact; -webkit-print-color-adjust: exact; }
 dl.kv { display: grid; grid-template-columns: max-content minmax(0, 1fr); gap: 0.15em 0.9em; margin: 0.3em 0; font-size: 0.93em; }
 dl.kv dt { color: ${MUTED}; }
 dl.kv dd { margin: 0; overflow-wrap: anywhere; }

@@ -22,6 +22,7 @@ import { DEFAULT_LINK_BASE, encodeSpecLink } from '../share/link.ts';
 import { AUTO_LOG_DECADES, blownUpLabel, buildEvidence, type EvidenceView, type GateRow, type VerdictRow } from '../ui/evidence.ts';
 import { autoLogReason, evidenceFigures } from '../ui/figure-list.ts';
 import { num, percent, pValue } from '../ui/format.ts';
+import { armLetter } from '../ui/palette.ts';
 import { canonicalJson } from '../util/hash.ts';
 import { taskLabel } from '../tasks/registry.ts';
 import { REPORT_CSS } from './report-style.ts';
@@ -65,8 +66,11 @@ function pairs(record: Record<string, unknown>): string {
   return `<dl class="kv">${rows.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(specValue(v))}</dd>`).join('')}</dl>`;
 }
 
-function swatch(color: string): string {
-  return `<span class="swatch" style="background:${esc(color)}"></span>`;
+/** An arm as its letter code (underlined in its colour, as in the figures' keys) and its name. */
+function armTag(view: EvidenceView, name: string): string {
+  const key = view.arms.find((a) => a.name === name);
+  if (!key) return esc(name);
+  return `<span class="arm-tag" style="text-decoration-color:${esc(key.color)}"><b>${esc(armLetter(key.index))}</b> ${esc(name)}</span>`;
 }
 
 function answer(view: EvidenceView): string {
@@ -93,7 +97,7 @@ function armsSection(spec: ExperimentSpec, view: EvidenceView): string {
     const training: Record<string, unknown> = { learningRate: arm.learningRate, schedule: arm.schedule, sparsity: arm.sparsity, stepSupervision: arm.stepSupervision };
     const inDist = view.inDistribution.find((p) => p.armIndex === i);
     return `<article class="arm" style="border-top-color:${esc(key.color)}" data-arm="${esc(arm.name)}">
-      <h3>${swatch(key.color)}${esc(arm.name)}</h3>
+      <h3>${armTag(view, arm.name)}</h3>
       ${arm.note ? `<p class="note">${esc(arm.note)}</p>` : ''}
       ${pairs({ ...arm.model, ...training })}
       ${inDist ? `<p class="muted">in-distribution ${esc(view.metric)} ${esc(num(inDist.mean))} [${esc(num(inDist.low))}, ${esc(num(inDist.high))}], ${inDist.n} seed${inDist.n === 1 ? '' : 's'}</p>` : ''}
@@ -125,7 +129,7 @@ function setupSection(spec: ExperimentSpec, view: EvidenceView): string {
 }
 
 function legend(view: EvidenceView, logY: boolean): string {
-  const arms = view.arms.map((a) => `<span class="key">${swatch(a.color)}${esc(a.name)}</span>`).join('');
+  const arms = view.arms.map((a) => `<span class="key">${armTag(view, a.name)}</span>`).join('');
   const log = logY ? `<span class="muted">Errors on a log scale: ${esc(autoLogReason(view))}.</span>` : '';
   return `<p class="legend">${arms}<span class="muted">shaded: training sizes ${view.trainSizes[0]}–${view.trainSizes[1]} (◇ in-distribution error); grey dashes: constant predictors</span>${log}</p>`;
 }
@@ -164,7 +168,7 @@ function verdictTable(view: EvidenceView): string {
     return `<tr data-kind="${esc(v.kind)}">
       <td class="l">${esc(size)}<span class="sub">depth ${esc(num(v.depthMean, 2))} · degree ${esc(num(v.meanDegree, 2))}</span></td>
       <td>${esc(num(v.constant))}${Number.isFinite(v.constantTrain) ? `<span class="sub">train-fitted ${esc(num(v.constantTrain))}</span>` : ''}</td>
-      <td class="l"><span style="color:${esc(color(v.a))}">${esc(v.a)}</span> vs <span style="color:${esc(color(v.b))}">${esc(v.b)}</span></td>
+      <td class="l">${armTag(view, v.a)} vs ${armTag(view, v.b)}</td>
       <td>${armCell(v, 'A')}</td>
       <td>${armCell(v, 'B')}</td>
       <td>${diff}</td>
@@ -190,7 +194,7 @@ function rankingTable(view: EvidenceView): string {
   if (view.arms.length <= 2 || view.rankings.length === 0) return '';
   const rows = view.rankings.map((r) => {
     const order = r.order
-      .map((o) => `<span style="color:${esc(o.color)}">${esc(o.arm)}</span> <span class="muted">${o.n ? esc(num(o.mean)) : ''}${o.blownUp ? ` (${esc(blownUpLabel(o.blownUp))})` : ''}</span>`)
+      .map((o) => `${armTag(view, o.arm)} <span class="muted">${o.n ? esc(num(o.mean)) : ''}${o.blownUp ? ` (${esc(blownUpLabel(o.blownUp))})` : ''}</span>`)
       .join(' &lt; ');
     return `<tr><td class="l">n = ${r.size}${r.scale !== 1 ? `, ×${r.scale}` : ''}</td><td class="l">${order}</td></tr>`;
   });
