@@ -11,16 +11,28 @@ import { fileURLToPath } from 'node:url';
 
 const ROOT = fileURLToPath(new URL('..', import.meta.url));
 
-/** Build the static site (vite build) into `outDir`; rejects with vite's own message. */
-export function buildSite(outDir: string, timeoutMs: number): Promise<void> {
-  return new Promise((ok, fail) => {
-    execFile(
-      process.execPath,
-      [join(ROOT, 'node_modules/vite/bin/vite.js'), 'build', '--outDir', outDir, '--emptyOutDir', '--logLevel', 'error'],
-      { cwd: ROOT, timeout: timeoutMs, maxBuffer: 64 * 1024 * 1024 },
-      (error, _stdout, stderr) => (error ? fail(new Error(`vite build failed: ${error.message}\n${stderr}`)) : ok()),
-    );
-  });
+/**
+ * Build the static site (vite build) into `outDir`; rejects with vite's own
+ * message. Vite allows one build per project at a time (a lock file): while
+ * another build holds it (browser tests build in parallel), wait and retry
+ * within the same time budget.
+ */
+export async function buildSite(outDir: string, timeoutMs: number): Promise<void> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const left = deadline - Date.now();
+    const failure = await new Promise<Error | null>((ok) => {
+      execFile(
+        process.execPath,
+        [join(ROOT, 'node_modules/vite/bin/vite.js'), 'build', '--outDir', outDir, '--emptyOutDir', '--logLevel', 'error'],
+        { cwd: ROOT, timeout: Math.max(1, left), maxBuffer: 64 * 1024 * 1024 },
+        (error, _stdout, stderr) => ok(error ? new Error(`vite build failed: ${error.message}\n${stderr}`) : null),
+      );
+    });
+    if (!failure) return;
+    if (!/Found another Vite build process/.test(failure.message) || Date.now() + 2_000 > deadline) throw failure;
+    await new Promise((wait) => setTimeout(wait, 2_000));
+  }
 }
 
 const TYPES: Record<string, string> = {

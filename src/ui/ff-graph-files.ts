@@ -14,7 +14,7 @@ import { fileInstance } from '../tasks/file-instance.ts';
 import { getTask } from '../tasks/registry.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
-import { hasGraphFile, onGraphFiles, provideGraphFile } from './graph-file-store.ts';
+import { hasGraphFile, onGraphFiles, provideGraphFile, shippedGraphFile } from './graph-file-store.ts';
 
 const ACCEPT = '.csv,.tsv,.txt,.edges,.gr,.dimacs,.graphml,.gexf';
 
@@ -87,6 +87,10 @@ export class FfGraphFiles extends LitElement {
       input.source {
         width: 7em;
       }
+      /* The file picker's own width must not push a 360 px page sideways. */
+      input[type='file'] {
+        max-width: 100%;
+      }
     `,
   ];
 
@@ -99,6 +103,30 @@ export class FfGraphFiles extends LitElement {
     this.unsubscribe?.();
     this.unsubscribe = null;
     super.disconnectedCallback();
+  }
+
+  override updated(changed: Map<string, unknown>): void {
+    if (changed.has('files')) void this.provideShipped();
+  }
+
+  /**
+   * Files the page does not hold whose base name is a shipped example graph:
+   * provide it, and record its hash where the spec has none (as the CLI does),
+   * or refuse it where the spec records another hash.
+   */
+  private async provideShipped(): Promise<void> {
+    const files = this.files ?? [];
+    let next = files;
+    for (const [i, f] of files.entries()) {
+      if (hasGraphFile(f.sha256)) continue;
+      const bytes = await shippedGraphFile(f.name);
+      if (!bytes) continue;
+      const sha256 = await contentHash(bytes);
+      if (f.sha256 && f.sha256 !== sha256) continue;
+      provideGraphFile(sha256, bytes);
+      if (!f.sha256) next = next.map((g, j) => (j === i ? { ...g, sha256 } : g));
+    }
+    if (next !== files && this.files === files) this.setFiles(next);
   }
 
   private setFiles(files: GraphFileSpec[]): void {
@@ -165,9 +193,10 @@ export class FfGraphFiles extends LitElement {
             ${files.map(
               (f, i) => html`<li data-file=${f.name}>
                 <code>${f.name}</code>
+                ${f.sha256 ? html`<span class="hash">sha256 ${f.sha256.slice(0, 12)}…</span>` : nothing}
                 ${hasGraphFile(f.sha256)
                   ? html`<span class="ok">ready</span>`
-                  : html`<span class="missing">missing: drop or pick ${f.name.replace(/^.*[\\/]/, '')}${f.sha256 ? html` (sha256 <span class="hash">${f.sha256.slice(0, 12)}…</span>)` : nothing}</span>`}
+                  : html`<span class="missing">missing: drop or pick ${f.name.replace(/^.*[\\/]/, '')}</span>`}
                 · source
                 <input
                   class="source"

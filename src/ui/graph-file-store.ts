@@ -10,6 +10,20 @@ import type { RunPlan } from '../experiment/plan.ts';
 import type { GraphFileContent } from '../experiment/file-rungs.ts';
 
 const contents = new Map<string, Uint8Array>();
+
+/**
+ * The example graphs shipped beside the presets (presets/graphs/), loaded on
+ * demand as their own chunks, so a shipped preset that names one runs in the
+ * sheet without a file to drop. Keyed by base name.
+ */
+const shipped = import.meta.glob<string>('../../presets/graphs/*', { query: '?raw', import: 'default' });
+
+/** A shipped example graph's bytes by base name, or null when there is none of that name. */
+export async function shippedGraphFile(name: string): Promise<Uint8Array | null> {
+  const base = name.replace(/^.*[\\/]/, '');
+  const load = Object.entries(shipped).find(([path]) => path.replace(/^.*\//, '') === base)?.[1];
+  return load ? new TextEncoder().encode(await load()) : null;
+}
 const listeners = new Set<() => void>();
 
 export function provideGraphFile(sha256: string, bytes: Uint8Array): void {
