@@ -13,7 +13,7 @@ export function armTag(index: number, name: string, suffix = '') {
     ><svg width="26" height="12" viewBox="0 0 26 12" aria-hidden="true" focusable="false">
       ${svg`<line x1="0" x2="26" y1="6" y2="6" stroke=${m.color} stroke-width="2.5" stroke-dasharray=${m.dash}></line>
       <path d=${symbolPath(m.symbol, 13, 6, 4)} fill=${m.color} stroke="#fff" stroke-width="0.8"></path>`}</svg
-    ><b>${m.letter}</b> ${name}${suffix}</span
+    ><b>${m.letter}</b> <span class="name">${name}${suffix}</span></span
   >`;
 }
 
@@ -22,7 +22,12 @@ export const armTagStyles = css`
     display: inline-flex;
     align-items: center;
     gap: 0.3em;
-    white-space: nowrap;
+    max-width: 100%;
+  }
+  /* A long arm name wraps rather than widening the page. */
+  .arm-tag .name {
+    min-width: 0;
+    overflow-wrap: anywhere;
   }
   .arm-tag svg {
     flex: none;

@@ -40,8 +40,8 @@ export class FfNotice extends LitElement {
       ul {
         margin: 0.3em 0;
         padding-left: 1.2em;
-        font-family: var(--mono);
-        font-size: 0.88em;
+        font-size: 0.92em;
+        overflow-wrap: anywhere;
       }
       .row {
         display: flex;

@@ -40,8 +40,12 @@ export class FfShare extends LitElement {
       }
       @media (max-width: 900px) {
         .grid {
-          grid-template-columns: 1fr;
+          grid-template-columns: minmax(0, 1fr);
         }
+      }
+      /* Commands and hashes wrap on a phone instead of widening the page. */
+      code {
+        overflow-wrap: anywhere;
       }
       .box {
         background: var(--card);

@@ -11,6 +11,7 @@ import { armCards, problemFields, type ArmCardView } from './spec-draft.ts';
 import { familyCatalogue, taskCatalogue } from './catalogue.ts';
 import { progressView } from './progress-view.ts';
 import { armColor } from './palette.ts';
+import { problemsInWords } from './problem-words.ts';
 import { LIMITS } from '../experiment/limits.ts';
 import { controls, sectionHead, tokens } from './styles.ts';
 import type { ResultsFormat } from './events.ts';
@@ -224,7 +225,9 @@ export class FfSheet extends LitElement {
     const d = this.derived;
     if (d.draft !== m.draft || d.validation !== m.validation) {
       const problems = m.validation.ok ? NO_PROBLEMS : m.validation.problems;
-      this.derived = { draft: m.draft, validation: m.validation, cards: armCards(m.draft, armColor), invalid: problemFields(problems), problems };
+      // Inputs are marked by the spec paths; the reader is told in the sheet's own labels.
+      const words = problems.length ? problemsInWords(problems, m.draft.arms.map((a) => a.name)) : NO_PROBLEMS;
+      this.derived = { draft: m.draft, validation: m.validation, cards: armCards(m.draft, armColor), invalid: problemFields(problems), problems: words };
     }
     const { cards, invalid, problems } = this.derived;
     const progress = progressView(m.run, Date.now());

@@ -243,8 +243,10 @@ export class FfVerdictTable extends LitElement {
         table.verdicts td.verdict {
           min-width: 0;
         }
-        .ranking td {
+        .ranking td,
+        .arm {
           white-space: normal;
+          overflow-wrap: anywhere;
         }
       }
     `,

@@ -15,6 +15,7 @@ import { applyEdit, sameSpec, validateDraft, type Draft, type SpecEdit, type Val
 import { DEFAULT_PRESET, loadPresets, type PresetEntry } from './presets.ts';
 import { RunController, type RunSnapshot } from './run-controller.ts';
 import { estimateCost, type CostEstimate } from '../experiment/cost.ts';
+import { armNamesOf, problemsInWords } from './problem-words.ts';
 import { openRunStore, memoryRunStore, type RunStore } from './run-store.ts';
 import { wrapWebWorker, type FaultKind, type PoolWorker } from './worker-pool.ts';
 import { buildEvidence, type EvidenceView } from './evidence.ts';
@@ -274,11 +275,13 @@ export class SheetController implements ReactiveController {
       history.replaceState(null, '', `${location.pathname}${location.search}`);
       this.load(spec, { kind: 'file', name }, null);
     } catch (error) {
-      const problems = error instanceof PresetError ? [...error.problems] : [];
+      // Each problem once, in the sheet's own words; the message only counts them when they are listed below.
+      const problems = error instanceof PresetError ? problemsInWords(error.problems, armNamesOf(text)) : [];
+      const message = problems.length > 1 ? `${problems.length} problems in this file:` : problems.length === 1 ? problems[0]! : error instanceof Error ? error.message : String(error);
       this.set({
         notice: {
           title: `Could not open ${name}`,
-          message: error instanceof Error ? error.message : String(error),
+          message,
           problems,
           hint: 'The sheet below is unchanged.',
         },
@@ -522,10 +525,11 @@ export class SheetController implements ReactiveController {
 
 function linkNotice(error: unknown): SheetNotice {
   if (error instanceof LinkError) {
+    const problems = problemsInWords(error.problems, []);
     return {
       title: 'This share link could not be opened',
-      message: error.message,
-      problems: [...error.problems],
+      message: problems.length > 1 ? `${problems.length} problems in this link:` : problems.length === 1 ? problems[0]! : error.message,
+      problems,
       hint: 'It was probably cut short or changed on the way. The default experiment is shown below instead; ask the sender for the link again, or for the preset file.',
     };
   }

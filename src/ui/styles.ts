@@ -44,6 +44,10 @@ export const controls = css`
     font: inherit;
     color: inherit;
   }
+  /* A select sizes itself to its longest option (a long arm name): never wider than its box. */
+  select {
+    max-width: 100%;
+  }
   input,
   select,
   textarea {

@@ -172,6 +172,46 @@ describe.skipIf(!existsSync(CHROMIUM))('the sheet at every width and for every r
     expect(await deepFocus()).toMatch(/^H2\|h-evidence\|/);
   }, 30_000);
 
+  it('says what is wrong in the sheet\'s own words, once each, and tells the truth about storage', async () => {
+    const page = await open('');
+    const hidden = page.getByLabel('Hidden width, arm max', { exact: true });
+    await hidden.fill('0');
+    await hidden.blur();
+    const problems = page.locator('ff-run-options [data-problems] li');
+    await expect.poll(() => problems.allTextContents()).toEqual(['Arm A (max) › Hidden width: got 0, allowed at least 1']);
+    expect(await page.locator('ff-run-controls [data-action="show-problems"]').textContent()).toMatch(/fix 1 problem first/);
+    expect(await runButton(page).isDisabled()).toBe(true);
+
+    // A preset file with three problems: the box lists each once, in on-screen labels, and the message only counts them.
+    const raw = JSON.parse(readFileSync(join(ROOT, 'presets/quick-demo.json'), 'utf8')) as { arms: Array<{ model: Record<string, unknown> }>; budget: Record<string, unknown>; seeds: Record<string, unknown> };
+    raw.arms[1]!.model.hidden = 0;
+    raw.budget.steps = 0;
+    raw.seeds.count = 100;
+    await page.getByLabel('Open a preset file').setInputFiles({ name: 'broken.json', mimeType: 'application/json', buffer: Buffer.from(JSON.stringify(raw)) });
+    const notice = page.locator('ff-notice [role="alert"]');
+    await expect.poll(() => notice.textContent()).toMatch(/Could not open broken\.json/);
+    expect((await notice.locator('.message').textContent())?.trim()).toBe('3 problems in this file:');
+    const listed = await notice.locator('li').allTextContents();
+    expect(listed).toHaveLength(3);
+    expect(listed).toContain('Arm B (sum) › Hidden width: got 0, allowed at least 1');
+    expect(listed).toContain('Setup › Training steps: got 0, allowed at least 1');
+    const text = (await notice.textContent()) ?? '';
+    for (const item of listed) expect(text.split(item).length - 1, item).toBe(1);
+
+    // Storage: kept runs are promised only where the browser lets the page keep them.
+    expect(await page.locator('ff-sheet footer').textContent()).toMatch(/kept in this browser \(IndexedDB\)/);
+    const ctx = await browser.newContext({ viewport: { width: 1360, height: 850 } });
+    contexts.push(ctx);
+    await ctx.addInitScript(() => Object.defineProperty(window, 'indexedDB', { value: undefined }));
+    const closed = await ctx.newPage();
+    await closed.goto(site.url);
+    await closed.waitForSelector('ff-sheet[data-ready="yes"]');
+    const footer = (await closed.locator('ff-sheet footer').textContent()) ?? '';
+    expect(footer).not.toMatch(/kept in this browser/);
+    expect(footer).toMatch(/does not let the page keep runs between visits/);
+    expect(await closed.locator('ff-run-options [data-storage-note]').textContent()).toMatch(/last until the tab closes/);
+  }, 60_000);
+
   it('runs again: every run afresh with the same fingerprint; after an edit, only the runs the edit changed', async () => {
     const page = await open(await link(fixture({ base: 51, question: 'Browser test: run again' })));
     await runButton(page).click();
