@@ -20,7 +20,7 @@ import type { ResultsDocument } from '../experiment/results.ts';
 import { armModel, type ExperimentSpec } from '../experiment/spec.ts';
 import { DEFAULT_LINK_BASE, encodeSpecLink } from '../share/link.ts';
 import { AUTO_LOG_DECADES, blownUpLabel, buildEvidence, type EvidenceView, type GateRow, type VerdictRow } from '../ui/evidence.ts';
-import { autoLogReason, evidenceFigures } from '../ui/figure-list.ts';
+import { autoLogReason, describeFigure, evidenceFigures } from '../ui/figure-list.ts';
 import { num, percent, pValue } from '../ui/format.ts';
 import { armLetter } from '../ui/palette.ts';
 import { canonicalJson } from '../util/hash.ts';
@@ -139,6 +139,8 @@ function figuresHtml(view: EvidenceView, options: ReportOptions): string {
   const width = options.figureWidth ?? 720;
   const figures = evidenceFigures(view).map((f) => {
     const drawn = f.draw({ width, logY: f.logScale && logY, document: options.document });
+    const svg = drawn.tagName.toLowerCase() === 'svg' ? drawn : drawn.querySelector('svg');
+    if (svg) describeFigure(svg, f.number, f.heading);
     return `<figure class="fig" data-figure="${f.name}">
       <h3><span class="no">Fig. ${f.number}</span>${esc(f.heading)}</h3>
       ${drawn.outerHTML}

@@ -2,6 +2,7 @@
 import { LitElement, css, html, nothing } from 'lit';
 import { controls, figureFrame } from './styles.ts';
 import { emit } from './events.ts';
+import { describeFigure } from './figure-list.ts';
 
 export class FfFigure extends LitElement {
   static override properties = {
@@ -42,19 +43,10 @@ export class FfFigure extends LitElement {
     if (changed.has('figure') || changed.has('heading')) this.describe();
   }
 
-  /**
-   * One image with one name for assistive technology: the chart's SVG gets
-   * role="img" and the figure's title; Observable Plot's aria-labels on its
-   * mark groups ("line", "rect"), which ARIA forbids on elements without a
-   * role, are dropped (the caption and tables carry the numbers in words).
-   */
+  /** One image with one name for assistive technology (src/ui/figure-list.ts, shared with the report). */
   private describe(): void {
     const svg = this.svg();
-    if (!svg) return;
-    for (const el of svg.querySelectorAll('[aria-label]')) if (!el.hasAttribute('role')) el.removeAttribute('aria-label');
-    for (const el of svg.querySelectorAll('[aria-description]')) el.removeAttribute('aria-description');
-    svg.setAttribute('role', 'img');
-    svg.setAttribute('aria-label', `Fig. ${this.number}: ${this.heading}`);
+    if (svg) describeFigure(svg, this.number, this.heading);
   }
 
   private svg(): SVGSVGElement | null {

@@ -25,7 +25,7 @@ export function curvesCaption(view: EvidenceView): string {
 }
 
 export const DIFFERENCES_CAPTION =
-  'Mean over seeds of (error of A − error of B), same graphs and initial weights per seed, with a 95% paired bootstrap interval. Below the zero line A is better; a coloured point marks a verdict for that arm.';
+  'Per pair of arms (by letter code, e.g. A − B), the mean over seeds of (error of the first − error of the second), same graphs and initial weights per seed, with a 95% paired bootstrap interval. Below the zero line the first arm is better; a coloured point marks a verdict for that arm.';
 
 export function seedsCaption(view: EvidenceView): string {
   return `Each dot is one trained network; lines join the arms of the same seed, so crossing lines mean the seeds disagree.${view.blownUp.length ? ' × at the top: runs that blew up (diverged, failed or a non-finite error); each counts as the worst outcome in the paired tests.' : ''}`;
@@ -52,4 +52,18 @@ export function evidenceFigures(view: EvidenceView): FigureEntry[] {
 /** Why the errors are on a log scale when nobody chose it: they span more than AUTO_LOG_DECADES. */
 export function autoLogReason(view: EvidenceView): string {
   return `the errors span ${view.errorDecades.toFixed(1)} decades, and a linear axis would flatten every curve but the largest`;
+}
+
+/**
+ * One image with one name for assistive technology: the chart's SVG gets
+ * role="img" and the figure's title; Observable Plot's aria-labels on its
+ * mark groups ("line", "rect"), which ARIA forbids on elements without a
+ * role, are dropped (the caption and tables carry the numbers in words).
+ * Works on any DOM (the page's, or the report's light one).
+ */
+export function describeFigure(svg: Element, number: number, heading: string): void {
+  for (const el of svg.querySelectorAll('[aria-label]')) if (!el.hasAttribute('role')) el.removeAttribute('aria-label');
+  for (const el of svg.querySelectorAll('[aria-description]')) el.removeAttribute('aria-description');
+  svg.setAttribute('role', 'img');
+  svg.setAttribute('aria-label', `Fig. ${number}: ${heading}`);
 }

@@ -12,6 +12,7 @@ import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
+import { createRequire } from 'node:module';
 import { CHROMIUM, CHROMIUM_ARGS } from '../../bench/chromium.ts';
 import { buildSite, serveStatic, type StaticServer } from '../../bench/static-server.ts';
 import { validateSpec } from '../../src/experiment/check.ts';
@@ -94,6 +95,20 @@ describe.skipIf(!existsSync(CHROMIUM))('standalone report in Chromium, offline',
     expect(await page.locator('h1[data-question]').textContent()).toMatch(/Fixture/);
     expect(attempted).toEqual([]);
     expect(problems).toEqual([]);
+    await context.close();
+  }, 60_000);
+
+  it('passes an axe-core scan with no serious or critical violations', async () => {
+    // The report's policy forbids every script, the scanner's too: this context alone sets it aside.
+    const context = await browser.newContext({ viewport: { width: 1100, height: 900 }, offline: true, bypassCSP: true });
+    const page = await context.newPage();
+    await page.goto(reportUrl, { waitUntil: 'load' });
+    await page.addScriptTag({ content: readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8') });
+    const violations = await page.evaluate(async () => {
+      const axe = (window as unknown as { axe: { run: (ctx: Document, opts: object) => Promise<{ violations: Array<{ id: string; impact: string | null; nodes: unknown[] }> }> } }).axe;
+      return (await axe.run(document, { resultTypes: ['violations'] })).violations.map((v) => ({ id: v.id, impact: v.impact, nodes: v.nodes.length }));
+    });
+    expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')).toEqual([]);
     await context.close();
   }, 60_000);
 
