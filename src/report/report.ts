@@ -60,8 +60,8 @@ function specValue(value: unknown): string {
   return String(value);
 }
 
-function pairs(record: Record<string, unknown>): string {
-  const rows = Object.entries(record).filter(([, v]) => v !== undefined);
+function pairs(record: object): string {
+  const rows = Object.entries(record as Record<string, unknown>).filter(([, v]) => v !== undefined);
   if (rows.length === 0) return '<p class="muted">no overrides: the shared model</p>';
   return `<dl class="kv">${rows.map(([k, v]) => `<dt>${esc(k)}</dt><dd>${esc(specValue(v))}</dd>`).join('')}</dl>`;
 }
@@ -102,7 +102,7 @@ function armsSection(spec: ExperimentSpec, view: EvidenceView): string {
       ${pairs({ ...arm.model, ...training })}
       ${inDist ? `<p class="muted">in-distribution ${esc(view.metric)} ${esc(num(inDist.mean))} [${esc(num(inDist.low))}, ${esc(num(inDist.high))}], ${inDist.n} seed${inDist.n === 1 ? '' : 's'}</p>` : ''}
       ${gateCell(view.gates.find((g) => g.armIndex === i))}
-      <details class="resolved"><summary>every model option of this arm</summary>${pairs(armModel(spec, i) as unknown as Record<string, unknown>)}</details>
+      <details class="resolved"><summary>every model option of this arm</summary>${pairs(armModel(spec, i))}</details>
     </article>`;
   });
   return section('arms', '§2', 'Arms, side by side', `<p class="muted">${esc(view.gateNote)}</p><div class="arms">${cards.join('')}</div>`);
