@@ -66,6 +66,15 @@ export class FfQuestion extends LitElement {
         color: var(--muted);
         min-height: 2.5em;
       }
+      /* A phone: the question stays a heading without filling the first screen. */
+      @media (max-width: 640px) {
+        .question {
+          font-size: 1.35em;
+        }
+        .mark {
+          font-size: 1.9em;
+        }
+      }
       .label {
         font-size: 0.75em;
         letter-spacing: 0.1em;

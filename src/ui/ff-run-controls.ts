@@ -122,6 +122,17 @@ export class FfRunControls extends LitElement {
       .fix {
         color: var(--danger);
       }
+      /* A phone: a smaller bar, so it takes little of the screen while it stays in view. */
+      @media (max-width: 640px) {
+        .bar {
+          font-size: 0.9em;
+          padding: 0.35em 0;
+          gap: 0.3em 0.6em;
+        }
+        .what .muted.split {
+          display: none;
+        }
+      }
     `,
   ];
 
@@ -145,7 +156,7 @@ export class FfRunControls extends LitElement {
 
   private summary(v: RunBarView) {
     const plan = html`<span class="plan" data-planned=${v.total}>${plural(v.total, 'run')}</span>
-      <span class="muted">(${plural(v.arms, 'arm')} × ${plural(v.seeds, 'seed')})</span>`;
+      <span class="muted split">(${plural(v.arms, 'arm')} × ${plural(v.seeds, 'seed')})</span>`;
     if (v.problems > 0) {
       return html`${plan} ·
         <button type="button" class="link fix" data-action="show-problems" @click=${() => emit(this, 'ff-show-problems', null)}>
