@@ -86,17 +86,30 @@ function byDestination(graph: ChunkedGraph): { order: Int32Array; start: Int32Ar
   return { order, start };
 }
 
-function makePart(graph: ChunkedGraph, edges: Int32Array, lo: number, rangeNodes: number): Part {
-  const local = new Map<number, number>();
-  const ids: number[] = [];
+/**
+ * Local node numbering for one part, without a Map per part: `slot[node]` holds
+ * the node's local number while `owner[node]` is this part's stamp. Large graphs
+ * are scored next to a large JavaScript heap (the task instance), where
+ * allocating one big Map per chunk made garbage collection dominate.
+ */
+interface Numbering {
+  owner: Int32Array;
+  slot: Int32Array;
+  stamp: number;
+}
+
+function makePart(graph: ChunkedGraph, edges: Int32Array, lo: number, rangeNodes: number, numbering: Numbering): Part {
+  const stamp = ++numbering.stamp;
+  const { owner, slot } = numbering;
+  const ids = new Int32Array(2 * edges.length);
+  let count = 0;
   const localOf = (node: number): number => {
-    let k = local.get(node);
-    if (k === undefined) {
-      k = ids.length;
-      ids.push(node);
-      local.set(node, k);
+    if (owner[node] !== stamp) {
+      owner[node] = stamp;
+      slot[node] = count;
+      ids[count++] = node;
     }
-    return k;
+    return slot[node]!;
   };
   const E = edges.length;
   const ef = graph.edgeFeatures;
@@ -114,12 +127,12 @@ function makePart(graph: ChunkedGraph, edges: Int32Array, lo: number, rangeNodes
     edgeX.set(graph.edgeX.subarray(e * ef, (e + 1) * ef), k * ef);
   }
   return {
-    localIds: tf.tensor1d(Int32Array.from(ids), 'int32'),
+    localIds: tf.tensor1d(ids.slice(0, count), 'int32'),
     localSrc: tf.tensor1d(src, 'int32'),
     localDst: tf.tensor1d(dst, 'int32'),
     aggDst: tf.tensor1d(agg, 'int32'),
     edgeX: tf.tensor2d(edgeX, [E, ef], 'float32'),
-    localNodes: ids.length,
+    localNodes: count,
     has: tf.tensor2d(has, [rangeNodes, 1], 'float32'),
   };
 }
@@ -128,12 +141,13 @@ function makePart(graph: ChunkedGraph, edges: Int32Array, lo: number, rangeNodes
 function planRanges(graph: ChunkedGraph, budget: number): Range[] {
   const { order, start } = byDestination(graph);
   const ranges: Range[] = [];
+  const numbering: Numbering = { owner: new Int32Array(graph.nodes), slot: new Int32Array(graph.nodes), stamp: 0 };
   const close = (lo: number, hi: number) => {
     const first = start[lo]!;
     const last = start[hi]!;
     const parts: Part[] = [];
     if (last > first) {
-      for (let p = first; p < last; p += budget) parts.push(makePart(graph, order.subarray(p, Math.min(p + budget, last)), lo, hi - lo));
+      for (let p = first; p < last; p += budget) parts.push(makePart(graph, order.subarray(p, Math.min(p + budget, last)), lo, hi - lo, numbering));
     }
     const counts = new Float32Array(hi - lo);
     for (let i = lo; i < hi; i++) counts[i - lo] = start[i + 1]! - start[i]!;
