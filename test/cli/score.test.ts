@@ -10,7 +10,7 @@ import { copyFileSync, mkdtempSync, readFileSync, readdirSync, writeFileSync } f
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import * as tf from '@tensorflow/tfjs-core';
-import '@tensorflow/tfjs-backend-cpu';
+import { initBackend } from '../../src/engine/backend.ts';
 import { farfield, root, tiny } from './spawn.ts';
 
 interface Metrics {
@@ -49,6 +49,7 @@ describe('saved networks: run --keep-networks, then score', () => {
   const files = ran.code === 0 ? readdirSync(nets).sort() : [];
 
   it('writes a JSON manifest and a binary shard per run, in TensorFlow.js weights format', async () => {
+    await initBackend('wasm');
     expect(ran.code, ran.stderr).toBe(0);
     expect(files).toEqual(['run0-max-seed3', 'run1-sum-seed3', 'run2-max-seed4', 'run3-sum-seed4'].flatMap((s) => [`${s}.bin`, `${s}.json`]));
     const manifest = JSON.parse(readFileSync(join(nets, 'run0-max-seed3.json'), 'utf8')) as Manifest;
