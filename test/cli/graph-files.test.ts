@@ -9,6 +9,9 @@ import { mkdtempSync, writeFileSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { farfield, root, tiny } from './spawn.ts';
+import { validateSpec } from '../../src/experiment/check.ts';
+import { encodeSpecLink } from '../../src/share/link.ts';
+import { contentHash } from '../../src/graphs/files/read.ts';
 
 const dir = mkdtempSync(join(tmpdir(), 'farfield-graphs-'));
 // The sample graph of the 9th DIMACS Implementation Challenge shortest-path format description (from memory).
@@ -77,5 +80,19 @@ describe('farfield run with graph files', () => {
     const run = farfield('run', preset, '--quiet');
     expect(run.code).toBe(1);
     expect(run.stderr).toBe("farfield run: g.gr: unknown source node id '9'; allowed 1..6\n");
+  });
+
+  it('a share link names its files by hash: run asks for them, and --graphs supplies them', async () => {
+    const spec = JSON.parse(readFileSync(tiny, 'utf8')) as { test: Record<string, unknown>; seeds: Record<string, unknown> };
+    spec.test.files = [{ name: 'sample.gr', source: '1', sha256: await contentHash(readFileSync(sampleGr)) }];
+    spec.seeds = { count: 1, base: 3 };
+    const link = await encodeSpecLink(validateSpec(spec), { base: '' });
+    const asked = farfield('run', link, '--quiet');
+    expect(asked.code).toBe(1);
+    expect(asked.stderr).toMatch(/^farfield run: sample\.gr: the link names this graph file \(sha256 [0-9a-f]{12}…\) but does not carry it; give it with --graphs PATH\n$/);
+    const supplied = farfield('run', link, '--graphs', sampleGr, '--quiet', '--json');
+    expect(supplied.code, supplied.stderr).toBe(0);
+    const doc = JSON.parse(supplied.stdout) as { runs: Array<{ ladder: Array<{ family: string; size: number }> }> };
+    expect(doc.runs[0]!.ladder.at(-1)).toMatchObject({ family: 'file:sample.gr', size: 6 });
   });
 });
