@@ -44,10 +44,14 @@ export function specHash(spec: ExperimentSpec): string {
   return sha256Hex(canonicalJson(spec)).slice(0, 16);
 }
 
-/** 6 significant digits: enough to catch a real change, tolerant of print formatting. */
-function round(x: number | null | undefined): number | string | null {
-  if (x === null || x === undefined) return null;
-  if (!Number.isFinite(x)) return String(x);
+/**
+ * 6 significant digits: enough to catch a real change, tolerant of print
+ * formatting. Every non-finite value counts as null: JSON (results files,
+ * journals, shards) writes NaN and ±Infinity as null, so a fingerprint taken
+ * after a resume or a merge must not tell them apart either.
+ */
+function round(x: number | null | undefined): number | null {
+  if (x === null || x === undefined || !Number.isFinite(x)) return null;
   return Number(x.toPrecision(6));
 }
 
