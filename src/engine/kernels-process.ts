@@ -2,7 +2,7 @@
  * The whole process phase of the message-passing network, T steps of
  *
  *   P = h·[W_s | W_d]              pre = P[src, :H] + P[dst, H:] + ê·W_e (+ b)
- *   m = act(pre)·W₂ (+ b₂)         a = ⊕_{e→v} m_e        (sum, mean, max, min)
+ *   m = act(pre)·W₂ (+ b₂)         a = ⊕_{e→v} m_e        (sum, mean, max, min, smooth-max, smooth-min)
  *   h ← h + (act([h, a, x̂]·W_u (+ b_u)))·W_u2 (+ b_u2)
  *
  * as ONE kernel forward and ONE kernel backward, for the mlp message and mlp
@@ -38,12 +38,14 @@ import { worthTransposing } from './kernels-matmul.ts';
 
 export const PROCESS_KERNELS = { forward: 'FarfieldProcess', backward: 'FarfieldProcessGrad' } as const;
 
-export type ProcessAggregator = 'sum' | 'mean' | 'max' | 'min';
+export type ProcessAggregator = 'sum' | 'mean' | 'max' | 'min' | 'smooth-max' | 'smooth-min';
 export type ProcessActivation = 'relu' | 'leaky-relu';
 
 export interface ProcessAttrs {
   steps: number;
   aggregator: ProcessAggregator;
+  /** τ of the smooth aggregators (unused by the others). */
+  temperature: number;
   activation: ProcessActivation;
   /** Under a gradient tape: unfused update relu and a stash for the backward kernel. */
   record: boolean;
@@ -87,10 +89,22 @@ interface StepLayout {
   x: number;
   hidden: number;
   arg: number;
+  /** Smooth aggregators: exp of the shifted messages [E, H] and log's argument [N, H], which their gradients read. */
+  exp: number;
+  safe: number;
   size: number;
 }
 
-function stepLayout(N: number, E: number, H: number, extreme: boolean): StepLayout {
+/** How an aggregator aggregates, as far as the kernels care. */
+type AggregatorKind = 'additive' | 'extreme' | 'smooth';
+
+function kindOf(aggregator: ProcessAggregator): AggregatorKind {
+  if (aggregator === 'max' || aggregator === 'min') return 'extreme';
+  if (aggregator === 'smooth-max' || aggregator === 'smooth-min') return 'smooth';
+  return 'additive';
+}
+
+function stepLayout(N: number, E: number, H: number, kind: AggregatorKind): StepLayout {
   const NH = N * H;
   const EH = E * H;
   const h = 0;
@@ -100,7 +114,9 @@ function stepLayout(N: number, E: number, H: number, extreme: boolean): StepLayo
   const x = concat + 3 * NH;
   const hidden = x + NH;
   const arg = hidden + NH;
-  return { h, pre, act, concat, x, hidden, arg, size: arg + (extreme ? NH : 0) };
+  const exp = arg + (kind === 'additive' ? 0 : NH);
+  const safe = exp + (kind === 'smooth' ? EH : 0);
+  return { h, pre, act, concat, x, hidden, arg, exp, safe, size: safe + (kind === 'smooth' ? NH : 0) };
 }
 
 // ------------------------------------------------------------ scratch ----
@@ -178,6 +194,59 @@ function checkIds(I: Int32Array, ids: number, E: number, N: number, what: string
   }
 }
 
+// ------------------------------------------------- smooth aggregators ----
+// smooth-max is the stock composition of src/model/aggregators.ts (smoothMaxSegments), op by op:
+//   peak = segmentMax(x)   shifted = (x − peak[dst]) / τ   total = segmentSum(exp(shifted))
+//   safe = total + (1 − hasIncoming)   out = (peak + log(safe)·τ) · hasIncoming
+// and smooth-min is −smoothMax(−m). Each elementwise float32 operation is one rounding, as the stock
+// kernel's (Math.fround of a double +, −, ×, ÷ of two float32 values is exactly the float32 result).
+// exp and log are the backend's own C kernels run on our buffers: their bits come from its
+// implementation, which Math.exp / Math.log do not reproduce.
+
+/** The Emscripten calls of the backend used here (cwrap and the C side's tensor registry). */
+interface BackendCalls {
+  cwrap(name: string, returns: null, args: string[]): (...args: number[]) => void;
+  tfjs: { registerTensor(id: number, size: number, memoryOffset: number): void; disposeData(id: number): void };
+}
+
+/** CppDType.float32 of the WASM backend (dist/kernels/types.js). */
+const CPP_FLOAT32 = 0;
+
+const unaryCalls = new WeakMap<object, Map<string, (x: number, dtype: number, out: number) => void>>();
+
+/**
+ * out[0..n) = the backend's own `name` kernel ('Exp' or 'Log') of x[0..n), on byte offsets. The C
+ * kernels take tensor ids, so both blocks are registered on the C side for the call only, under ids
+ * drawn from the backend's own counter (it never hands one out twice, so they cannot collide with a
+ * tensor's); the C side's dispose forgets the id and frees nothing (the backend's JS frees memory).
+ */
+export function backendUnary(backend: BackendWasm, name: 'Exp' | 'Log', x: number, out: number, n: number): void {
+  if (n === 0) return;
+  const calls = backend.wasm as unknown as BackendCalls;
+  let cache = unaryCalls.get(calls);
+  if (cache == null) unaryCalls.set(calls, (cache = new Map()));
+  let call = cache.get(name);
+  if (call == null) cache.set(name, (call = calls.cwrap(name, null, ['number', 'number', 'number'])));
+  const counter = backend as unknown as { dataIdNextNumber: number };
+  const xId = counter.dataIdNextNumber++;
+  const outId = counter.dataIdNextNumber++;
+  calls.tfjs.registerTensor(xId, n, x);
+  calls.tfjs.registerTensor(outId, n, out);
+  try {
+    call(xId, CPP_FLOAT32, outId);
+  } finally {
+    calls.tfjs.disposeData(xId);
+    calls.tfjs.disposeData(outId);
+  }
+}
+
+/** 1 where a node has an incoming edge, else 0: the stock minimum(segmentCounts, 1). */
+function hasIncomingOf(I: Int32Array, dst: number, E: number, N: number): Float32Array {
+  const has = new Float32Array(N);
+  for (let e = 0; e < E; e++) has[I[dst + e]!] = 1;
+  return has;
+}
+
 // ------------------------------------------------------------ kernels ----
 
 interface Tensors {
@@ -189,6 +258,7 @@ function attrsOf(attrs: tf.NamedAttrMap | undefined): ProcessAttrs {
   return {
     steps: a.steps,
     aggregator: a.aggregator,
+    temperature: a.temperature,
     activation: a.activation,
     record: a.record,
     hasMessageBias: a.hasMessageBias,
@@ -215,8 +285,8 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   const H = encoded.shape[1]!;
   const E = t['src']!.shape[0]!;
   const T = at.steps;
-  const extreme = at.aggregator === 'max' || at.aggregator === 'min';
-  const layout = stepLayout(N, E, H, extreme);
+  const kind = kindOf(at.aggregator);
+  const layout = stepLayout(N, E, H, kind);
   const NH = N * H;
   const EH = E * H;
 
@@ -230,6 +300,7 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
     a: NH,
     out: NH,
     ...(stash == null ? { step: layout.size } : {}),
+    ...(kind === 'smooth' ? { peak: NH, shifted: EH, negated: at.aggregator === 'smooth-min' ? EH : 0, total: NH, logs: NH } : {}),
   };
   const s = carve(scratch(raw, 4 * totalFloats(sizes)), sizes);
   const ptr = (name: string) => raw.offset(t[name]!);
@@ -240,9 +311,15 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   const bu = bias(at.hasUpdateBias, 'bu');
   const b2u = bias(at.hasOutputBias, 'b2u');
 
-  // Views only now, after every allocation.
-  const F = new Float32Array(raw.memory.buffer);
-  const I = new Int32Array(raw.memory.buffer);
+  // Views only now, after every allocation (and renewed after the backend's own kernels, which may allocate).
+  let F = new Float32Array(raw.memory.buffer);
+  let I = new Int32Array(raw.memory.buffer);
+  const renew = () => {
+    if (F.buffer !== raw.memory.buffer) {
+      F = new Float32Array(raw.memory.buffer);
+      I = new Int32Array(raw.memory.buffer);
+    }
+  };
   try {
     checkIds(I, floatIndex(src), E, N, 'source');
     checkIds(I, floatIndex(dst), E, N, 'destination');
@@ -252,6 +329,8 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
     throw error;
   }
   const counts = at.aggregator === 'mean' ? segmentCountsOf(I, floatIndex(dst), E, N) : null;
+  const hasIncoming = kind === 'smooth' ? hasIncomingOf(I, floatIndex(dst), E, N) : null;
+  const tau = Math.fround(at.temperature);
 
   const stepBase = (step: number): number => (stash != null ? raw.offset(stash) + 4 * step * layout.size : s['step']!);
   const h = raw.offset(hOut);
@@ -269,8 +348,47 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
     matmul(raw, p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
     // aggregate
     const a = floatIndex(s['a']!);
-    if (extreme) {
+    if (kind === 'extreme') {
       raw.segmentExtreme(s['m']!, dst, s['a']!, p('arg'), E, H, N, at.aggregator === 'max');
+    } else if (hasIncoming != null) {
+      // smooth-max of x = m, or of x = −m for smooth-min (whose result is negated at the end)
+      const negate = at.aggregator === 'smooth-min';
+      let x = s['m']!;
+      if (negate) {
+        const from = floatIndex(x);
+        const to = floatIndex(s['negated']!);
+        for (let i = 0; i < EH; i++) F[to + i] = -F[from + i]!;
+        x = s['negated']!;
+      }
+      raw.segmentExtreme(x, dst, s['peak']!, p('arg'), E, H, N, true);
+      const xi = floatIndex(x);
+      const peak = floatIndex(s['peak']!);
+      const shifted = floatIndex(s['shifted']!);
+      const ids = floatIndex(dst);
+      for (let e = 0; e < E; e++) {
+        const row = I[ids + e]! * H;
+        for (let c = 0; c < H; c++) F[shifted + e * H + c] = Math.fround(F[xi + e * H + c]! - F[peak + row + c]!) / tau;
+      }
+      backendUnary(backend, 'Exp', s['shifted']!, p('exp'), EH);
+      renew();
+      raw.segmentSum(p('exp'), dst, s['total']!, E, H, N);
+      const total = floatIndex(s['total']!);
+      const safe = floatIndex(p('safe'));
+      for (let v = 0; v < N; v++) {
+        const empty = 1 - hasIncoming[v]!;
+        for (let c = 0; c < H; c++) F[safe + v * H + c] = F[total + v * H + c]! + empty;
+      }
+      backendUnary(backend, 'Log', p('safe'), s['logs']!, NH);
+      renew();
+      const logs = floatIndex(s['logs']!);
+      for (let v = 0; v < N; v++) {
+        const has = hasIncoming[v]!;
+        for (let c = 0; c < H; c++) {
+          const i = v * H + c;
+          const value = Math.fround(Math.fround(F[peak + i]! + Math.fround(F[logs + i]! * tau)) * has);
+          F[a + i] = negate ? -value : value;
+        }
+      }
     } else {
       raw.segmentSum(s['m']!, dst, s['a']!, E, H, N);
       if (counts != null) {
@@ -327,8 +445,8 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
   const H = dy.shape[1]!;
   const E = t['src']!.shape[0]!;
   const T = at.steps;
-  const extreme = at.aggregator === 'max' || at.aggregator === 'min';
-  const layout = stepLayout(N, E, H, extreme);
+  const kind = kindOf(at.aggregator);
+  const layout = stepLayout(N, E, H, kind);
   const NH = N * H;
   const EH = E * H;
   const HH = H * H;
@@ -370,6 +488,7 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     w2mT: HH,
     jmT: 2 * HH,
     block: Math.max(3 * NH, EH, 3 * HH),
+    ...(kind === 'smooth' ? { dPeak: NH, dSafe: NH, dShare: NH, dExp: EH, dShifted: EH, dNeg: EH, dArg: EH } : {}),
   };
   const s = carve(scratch(raw, 4 * totalFloats(sizes)), sizes);
   const ptr = (name: string) => raw.offset(t[name]!);
@@ -381,6 +500,8 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
   const I = new Int32Array(raw.memory.buffer);
   const fi = floatIndex;
   const counts = at.aggregator === 'mean' ? segmentCountsOf(I, fi(dst), E, N) : null;
+  const hasIncoming = kind === 'smooth' ? hasIncomingOf(I, fi(dst), E, N) : null;
+  const tau = Math.fround(at.temperature);
   // The stock path transposes each weight before every A·Bᵀ; the weights do not change during a step.
   transpose(F, fi(s['w2uT']!), fi(ptr('w2u')), H, H);
   transpose(F, fi(s['juT']!), fi(ptr('ju')), 3 * H, H);
@@ -461,8 +582,45 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     raw.copyBlock(s['dConcat']! + 8 * H, s['dencc']!, N, H, 3 * H, H);
     // aggregation
     const da = fi(s['da']!);
-    if (extreme) {
+    if (kind === 'extreme') {
       raw.scatterByArg(s['da']!, p('arg'), s['dm']!, E, NH, H);
+    } else if (hasIncoming != null) {
+      // The stock gradients in the tape's reverse order (see the forward): × hasIncoming, + peak (whose
+      // share is kept for peak's chain), × τ, log (÷ safe), + (1 − hasIncoming), segmentSum (gather),
+      // exp (× its output), ÷ τ, then x − peak[dst]: x's share is the quotient itself, peak's the
+      // segment sum of its negation, added after the first share of peak; then segmentMax sends peak's
+      // gradient to the arg-max edges, added after x's first share. smooth-min negates on the way in and out.
+      const negate = at.aggregator === 'smooth-min';
+      const dPeak = fi(s['dPeak']!);
+      const dSafe = fi(s['dSafe']!);
+      const safe = fi(p('safe'));
+      for (let v = 0; v < N; v++) {
+        const has = hasIncoming[v]!;
+        for (let c = 0; c < H; c++) {
+          const i = v * H + c;
+          const share = Math.fround((negate ? -F[da + i]! : F[da + i]!) * has);
+          F[dPeak + i] = share;
+          F[dSafe + i] = Math.fround(share * tau) / F[safe + i]!;
+        }
+      }
+      raw.gatherRows(s['dSafe']!, dst, s['dExp']!, E, H);
+      const dExp = fi(s['dExp']!);
+      const exp = fi(p('exp'));
+      const dShifted = fi(s['dShifted']!);
+      const dNeg = fi(s['dNeg']!);
+      for (let i = 0; i < EH; i++) {
+        const q = Math.fround(Math.fround(F[dExp + i]! * F[exp + i]!) / tau);
+        F[dShifted + i] = q;
+        F[dNeg + i] = -q;
+      }
+      raw.segmentSum(s['dNeg']!, dst, s['dShare']!, E, H, N);
+      raw.add(s['dPeak']!, s['dShare']!, s['dPeak']!, NH);
+      raw.scatterByArg(s['dPeak']!, p('arg'), s['dArg']!, E, NH, H);
+      raw.add(s['dShifted']!, s['dArg']!, s['dm']!, EH);
+      if (negate) {
+        const dm = fi(s['dm']!);
+        for (let i = 0; i < EH; i++) F[dm + i] = -F[dm + i]!;
+      }
     } else {
       if (counts != null) {
         for (let v = 0; v < N; v++) {

@@ -13,7 +13,7 @@ import { fusedProcessEnabled, processSteps, type ProcessAggregator, type Process
 import { isWasmMatMulPatched } from '../engine/kernels-matmul.ts';
 import { simdKernels } from '../engine/simd/simd-kernels.ts';
 
-const FUSED_AGGREGATORS: ReadonlySet<string> = new Set<ProcessAggregator>(['sum', 'mean', 'max', 'min']);
+const FUSED_AGGREGATORS: ReadonlySet<string> = new Set<ProcessAggregator>(['sum', 'mean', 'max', 'min', 'smooth-max', 'smooth-min']);
 
 export interface ProcessWatchers {
   trace?: boolean;
@@ -36,6 +36,7 @@ export function runFusedProcess(options: ModelOptions, inputs: ProcessInputs, st
   return processSteps(inputs, {
     steps,
     aggregator: options.aggregator as ProcessAggregator,
+    temperature: options.aggregatorTemperature,
     activation: options.activation as 'relu' | 'leaky-relu',
   });
 }

@@ -10,7 +10,8 @@
 import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend } from '../../src/engine/backend.ts';
-import { setFusedProcessEnabled } from '../../src/engine/kernels-process.ts';
+import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
+import { backendUnary, setFusedProcessEnabled } from '../../src/engine/kernels-process.ts';
 import { modelSchema } from '../../src/experiment/spec.ts';
 import { MessagePassingNetwork, type NetworkInputs } from '../../src/model/network.ts';
 import { fusedProcessApplies } from '../../src/model/fused-process.ts';
@@ -68,9 +69,18 @@ function differing(a: ArrayLike<number>, b: ArrayLike<number>): number {
   return n;
 }
 
-function compareWays(model: Record<string, unknown>, data: TaskInstance[], steps: number): void {
+/**
+ * A freshly built network's update output layer is zero (each step starts as the identity), so no
+ * gradient reaches the aggregation or the message layers; `trained` moves every weight by a seeded
+ * random amount first, as some training would, so every gradient rule is exercised.
+ */
+function compareWays(model: Record<string, unknown>, data: TaskInstance[], steps: number, trained = false): void {
   const options = modelSchema.parse({ hidden: 32, ...model, steps: { rule: 'fixed', count: steps, trainJitter: 0 }, ...model });
   const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(11));
+  if (trained) {
+    const rng = new Rng(41);
+    network.params.restore(new Map([...network.params.snapshot()].map(([name, w]) => [name, Float32Array.from(w, (v) => v + rng.uniform(-0.3, 0.3))])));
+  }
   const batch = uploadBatch(makeBatch(data, TRANSFORMS));
   try {
     expect(fusedProcessApplies(options, {}, batch.nodes, batch.src.shape[0], steps)).toBe(true);
@@ -99,6 +109,60 @@ describe('fused process kernels give the stock composition’s bits', () => {
       });
     }
   }
+
+  for (const aggregator of ['smooth-max', 'smooth-min']) {
+    for (const activation of ['relu', 'leaky-relu']) {
+      it(`${aggregator}, ${activation}, τ = 1 and 0.1, with biases and bias-free`, () => {
+        compareWays({ aggregator, activation, aggregatorTemperature: 1 }, er, 9);
+        compareWays({ aggregator, activation, aggregatorTemperature: 1 }, er, 9, true);
+        compareWays({ aggregator, activation, aggregatorTemperature: 0.1, bias: false }, er, 9, true);
+      });
+    }
+  }
+
+  it('smooth aggregators at other temperatures, on small shapes, with ties and on DAGs (nodes without incoming edges)', () => {
+    const small = instances('er', 8, [1, 10], 29);
+    const ties = instances('er', 12, [3, 3], 5);
+    const dags = instances('dag', 12, [1, 10], 7);
+    for (const aggregator of ['smooth-max', 'smooth-min']) {
+      compareWays({ aggregator, aggregatorTemperature: 0.37, hidden: 16 }, small, 10, true);
+      compareWays({ aggregator, aggregatorTemperature: 3, hidden: 8, activation: 'leaky-relu', bias: false }, small, 3, true);
+      compareWays({ aggregator, aggregatorTemperature: 0.1 }, ties, 6, true);
+      compareWays({ aggregator, aggregatorTemperature: 1, activation: 'leaky-relu' }, ties, 6, true);
+      compareWays({ aggregator, aggregatorTemperature: 0.1 }, dags, 1, true);
+      compareWays({ aggregator, aggregatorTemperature: 1, bias: false }, dags, 20, true);
+    }
+  });
+
+  it('every hard aggregator with moved weights (gradient through the aggregation and the message layers)', () => {
+    for (const aggregator of ['max', 'sum', 'mean', 'min']) {
+      compareWays({ aggregator }, er, 9, true);
+      compareWays({ aggregator, activation: 'leaky-relu', bias: false }, er, 5, true);
+    }
+  });
+
+  it('the backend’s own Exp and Log, run on blocks of memory, give tf.exp’s and tf.log’s bits', () => {
+    // The smooth aggregators' exp and log must be the backend's (Math.exp and Math.log round differently).
+    const rng = new Rng(43);
+    const n = 4099;
+    const values = Float32Array.from({ length: n }, () => rng.uniform(-1, 1) * 10 ** rng.uniform(-3, 3) * (rng.uniform(0, 1) < 0.3 ? 100 : 1));
+    [NaN, -Infinity, Infinity, 0, -0, 1, -1, 88.7, 89, -87.3, -104, -150, 1e-45, -1e-45, 3.4e38].forEach((v, i) => (values[i] = v));
+    const backend = tf.backend() as unknown as BackendWasm;
+    const offset = (t: tf.Tensor) => backend.dataIdMap.get(t.dataId)!.memoryOffset;
+    for (const [name, stock] of [['Exp', tf.exp], ['Log', tf.log]] as const) {
+      const x = tf.tensor1d(values);
+      const out = tf.tensor1d(new Float32Array(n));
+      const before = { tensors: tf.memory().numTensors, data: backend.numDataIds() };
+      // An odd start and length: the fused kernels call it on sub-blocks of their stash.
+      backendUnary(backend, name, offset(x) + 4, offset(out) + 4, n - 3);
+      expect({ tensors: tf.memory().numTensors, data: backend.numDataIds() }).toEqual(before);
+      const expected = tf.tidy(() => stock(x).dataSync());
+      const got = out.dataSync();
+      expect([Object.is(got[0], 0), Object.is(got[n - 2], 0), Object.is(got[n - 1], 0)]).toEqual([true, true, true]);
+      expect([name, differing(got.subarray(1, n - 2), expected.subarray(1, n - 2))]).toEqual([name, 0]);
+      tf.dispose([x, out]);
+    }
+  });
 
   it('small networks and batches, whose gradient products the stock path leaves to its blocked scalar loop', () => {
     // hidden 8 with ~100-400 edges: Aᵀ·dy over the edges is not worth transposing, and its 48-wide blocks
