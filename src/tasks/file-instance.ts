@@ -74,17 +74,80 @@ export function fileToGraph(file: FileGraph, weights: Float64Array): Graph {
   return graph;
 }
 
+/** What a file offers a task, checked without solving: cheap enough for a page's main thread at the caps. */
+export interface FileCheck {
+  rule: FileTaskRule;
+  weights: Float64Array;
+  /** Node number of the source, for tasks with one. */
+  source: number | undefined;
+  /** Nodes the source reaches along the edges (itself included); every node when the task has no source. */
+  reachable: number;
+}
+
+/** Nodes reachable from `source` along the file's edges (both ways when undirected), by breadth-first search. */
+function reachableFrom(file: FileGraph, source: number): number {
+  const n = file.ids.length;
+  const both = !file.directed;
+  const start = new Int32Array(n + 1);
+  for (let e = 0; e < file.src.length; e++) {
+    start[file.src[e]! + 1]!++;
+    if (both) start[file.dst[e]! + 1]!++;
+  }
+  for (let i = 0; i < n; i++) start[i + 1]! += start[i]!;
+  const next = start.slice(0, n);
+  const to = new Int32Array(start[n]!);
+  for (let e = 0; e < file.src.length; e++) {
+    to[next[file.src[e]!]!++] = file.dst[e]!;
+    if (both) to[next[file.dst[e]!]!++] = file.src[e]!;
+  }
+  const seen = new Uint8Array(n);
+  const queue = new Int32Array(n);
+  let head = 0;
+  let tail = 0;
+  queue[tail++] = source;
+  seen[source] = 1;
+  while (head < tail) {
+    const u = queue[head++]!;
+    for (let k = start[u]!; k < start[u + 1]!; k++) {
+      const v = to[k]!;
+      if (!seen[v]) {
+        seen[v] = 1;
+        queue[tail++] = v;
+      }
+    }
+  }
+  return tail;
+}
+
+/**
+ * The task's rule, its weights and its source, each refused with file and line
+ * where wrong, and a source that reaches no other node refused as disconnected.
+ */
+export function checkFile(task: Task, file: FileGraph, options: { source?: string } = {}): FileCheck {
+  const rule = fileTaskRule(task);
+  const weights = checkedWeights(file, rule, task.id);
+  const source = rule.source ? fileSource(file, options.source) : undefined;
+  const reachable = source === undefined ? file.ids.length : reachableFrom(file, source);
+  if (source !== undefined && reachable < 2) {
+    const hint = file.ids[file.src[0]!]!;
+    throw new GraphFileError(
+      file.name,
+      null,
+      `source '${file.ids[source]}' is disconnected: it reaches none of the other ${file.ids.length - 1} nodes${file.directed ? ' along the arcs' : ''}; allowed a source that reaches at least one other node, e.g. '${hint}'`,
+    );
+  }
+  return { rule, weights, source, reachable };
+}
+
 export interface FileInstance {
   graph: Graph;
   instance: TaskInstance;
-  /** Nodes the source reaches (mask 1), the source included. */
+  /** Nodes the task counts (mask 1), e.g. those the source reaches. */
   reached: number;
 }
 
 export function fileInstance(task: Task, file: FileGraph, options: { source?: string } = {}): FileInstance {
-  const rule = fileTaskRule(task);
-  const weights = checkedWeights(file, rule, task.id);
-  const source = rule.source ? fileSource(file, options.source) : undefined;
+  const { weights, source } = checkFile(task, file, options);
   const graph = fileToGraph(file, weights);
   // The instance draws nothing once the source is fixed; the stream is there only to satisfy the signature.
   let instance: TaskInstance;
@@ -95,13 +158,5 @@ export function fileInstance(task: Task, file: FileGraph, options: { source?: st
   }
   let reached = 0;
   for (const m of instance.mask) reached += m;
-  if (source !== undefined && reached < 2) {
-    const hint = file.ids[file.src[0]!]!;
-    throw new GraphFileError(
-      file.name,
-      null,
-      `source '${file.ids[source]}' is disconnected: it reaches none of the other ${file.ids.length - 1} nodes${file.directed ? ' along the arcs' : ''}; allowed a source that reaches at least one other node, e.g. '${hint}'`,
-    );
-  }
   return { graph, instance, reached };
 }

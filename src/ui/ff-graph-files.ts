@@ -10,7 +10,7 @@ import { LitElement, css, html, nothing } from 'lit';
 import type { ExperimentSpec, GraphFileSpec } from '../experiment/spec.ts';
 import { contentHash, readGraphFile } from '../graphs/files/read.ts';
 import { GRAPH_FILE_LIMITS } from '../graphs/files/caps.ts';
-import { fileInstance } from '../tasks/file-instance.ts';
+import { checkFile } from '../tasks/file-instance.ts';
 import { getTask } from '../tasks/registry.ts';
 import { controls } from './styles.ts';
 import { emit } from './events.ts';
@@ -151,11 +151,13 @@ export class FfGraphFiles extends LitElement {
     }
     try {
       const graph = readGraphFile({ name, format: entry.format, weight: entry.weight, directed: entry.directed }, bytes);
-      const { reached } = fileInstance(getTask(this.task), graph, { source: entry.source });
+      // Checked, not solved: solving a graph at the caps takes seconds, and the workers solve it anyway.
+      const { source, reachable } = checkFile(getTask(this.task), graph, { source: entry.source });
       provideGraphFile(sha256, bytes);
       const next = named >= 0 ? files.map((f, i) => (i === named ? { ...f, sha256 } : f)) : [...files, { ...entry, sha256 }];
       if (named < 0 || !files[named]!.sha256) this.setFiles(next);
-      return { kind: 'ok', text: `${name}: ${graph.ids.length} nodes, ${graph.src.length} edges; ${reached} counted. Kept in this page only.` };
+      const reach = source === undefined ? '' : `; ${reachable} reachable from source '${graph.ids[source]}'`;
+      return { kind: 'ok', text: `${name}: ${graph.ids.length} nodes, ${graph.src.length} edges${reach}. Kept in this page only.` };
     } catch (error) {
       return { kind: 'error', text: error instanceof Error ? error.message : String(error) };
     }

@@ -73,7 +73,7 @@ describe.skipIf(!existsSync(CHROMIUM))('graph files in the sheet (Chromium, buil
       return dt;
     }, RING);
     await files.locator('[data-testid="graph-drop"]').dispatchEvent('drop', { dataTransfer: transfer });
-    await expect.poll(() => files.locator('[role="status"]').textContent()).toBe('ring.csv: 20 nodes, 21 edges; 20 counted. Kept in this page only.');
+    await expect.poll(() => files.locator('[role="status"]').textContent()).toBe("ring.csv: 20 nodes, 21 edges; 20 reachable from source 'r0'. Kept in this page only.");
     expect(await text('ring.csv')).toContain('ready');
 
     await page.locator('ff-run-controls button[data-action="run"]').click();
@@ -104,7 +104,7 @@ describe.skipIf(!existsSync(CHROMIUM))('graph files in the sheet (Chromium, buil
     const made = `<?xml version="1.0"?><graphml xmlns="http://graphml.graphdrawing.org/xmlns"><key id="w" for="edge" attr.name="weight" attr.type="double"/><graph edgedefault="undirected"><node id="a"/><node id="b"/><edge source="a" target="b"><data key="w">2</data></edge></graph></graphml>`;
     // The sheet bundles the readers; drive them through the component with a picked GraphML file.
     await page.getByLabel('Pick graph files').setInputFiles({ name: 'pair.graphml', mimeType: 'application/xml', buffer: Buffer.from(made) });
-    await expect.poll(() => page.locator('ff-graph-files [role="status"]').textContent()).toBe('pair.graphml: 2 nodes, 1 edges; 2 counted. Kept in this page only.');
+    await expect.poll(() => page.locator('ff-graph-files [role="status"]').textContent()).toBe("pair.graphml: 2 nodes, 1 edges; 2 reachable from source 'a'. Kept in this page only.");
     expect(pageErrors).toEqual([]);
   }, 60_000);
 });

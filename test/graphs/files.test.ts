@@ -9,7 +9,7 @@ import { graphologyDistances } from '../helpers.ts';
 import { readGraphFile, contentHash, inferFormat } from '../../src/graphs/files/read.ts';
 import { GraphFileError, type FileGraph } from '../../src/graphs/files/types.ts';
 import { GRAPH_FILE_LIMITS } from '../../src/graphs/files/caps.ts';
-import { fileInstance } from '../../src/tasks/file-instance.ts';
+import { checkFile, fileInstance } from '../../src/tasks/file-instance.ts';
 import { getTask } from '../../src/tasks/registry.ts';
 
 const referenceDistances = graphologyDistances; // graphology-shortest-path 2.1
@@ -153,6 +153,12 @@ describe('sources and tasks', () => {
     expect(refusal(() => fileInstance(getTask('shortest-path'), directed, { source: 'b' })).message).toBe(
       "d.csv: source 'b' is disconnected: it reaches none of the other 2 nodes along the arcs; allowed a source that reaches at least one other node, e.g. 'a'",
     );
+  });
+  it('checks without solving: reachability by breadth-first search agrees with the solved mask', () => {
+    expect(checkFile(getTask('shortest-path'), g(), { source: 'c' }).reachable).toBe(2);
+    const directed = readGraphFile({ name: 'd.csv', directed: true }, 'source,target,weight\na,b,1\nb,c,1\nd,a,1\n');
+    expect(checkFile(getTask('shortest-path'), directed, { source: 'a' }).reachable).toBe(3);
+    expect(fileInstance(getTask('shortest-path'), directed, { source: 'a' }).reached).toBe(3);
   });
   it('masks nodes the source cannot reach and counts the rest', () => {
     const { instance, reached } = fileInstance(getTask('shortest-path'), g(), { source: 'a' });
