@@ -14,7 +14,9 @@ import type { RunResult } from './run-types.ts';
 
 export function runKey(spec: ExperimentSpec, plan: Pick<RunPlan, 'armIndex' | 'seed'>): string {
   const { question: _q, expectation: _e, arms: _a, seeds: _s, sweep: _w, model: _m, ...shared } = spec;
-  return sha256Hex(canonicalJson({ shared, model: armModel(spec, plan.armIndex), training: armTraining(spec, plan.armIndex), seed: plan.seed })).slice(0, 16);
+  // The fit gate only judges finished runs: changing it reruns nothing.
+  const { fitGate: _g, ...budget } = spec.budget;
+  return sha256Hex(canonicalJson({ shared: { ...shared, budget }, model: armModel(spec, plan.armIndex), training: armTraining(spec, plan.armIndex), seed: plan.seed })).slice(0, 16);
 }
 
 /** A finished run carried over to another plan position (same key): renumbered, same numbers. */
