@@ -120,6 +120,8 @@ export interface AdjustmentView {
 export interface LadderRow {
   size: number;
   scale: number;
+  /** A graph-file rung: the file's name (its size is the file's node count). */
+  file?: string;
   depthMean: number;
   meanDegree: number;
   inTrainingRange: boolean;
@@ -128,6 +130,8 @@ export interface LadderRow {
 export interface VerdictRow {
   size: number;
   scale: number;
+  /** A graph-file rung: the file's name. */
+  file?: string;
   depthMean: number;
   meanDegree: number;
   inTrainingRange: boolean;
@@ -167,6 +171,8 @@ export interface VerdictRow {
 
 /** One rung's arms from lowest to highest mean error (sweeps and many-arm experiments). */
 export interface RankingRow {
+  /** A graph-file rung: the file's name. */
+  file?: string;
   size: number;
   scale: number;
   depthMean: number;
@@ -368,12 +374,14 @@ export function buildEvidence(doc: ResultsDocument): EvidenceView {
     const key = rungKey(rung.family, rung.size, rung.scale);
     const tested = rung.tested !== false;
     const base: RungComparison['baseline'] = rung.baseline ?? { best: NaN, train: NaN, bestRelative: NaN, trainRelative: NaN };
-    ladder.push({ size: rung.size, scale: rung.scale, depthMean: rung.depthMean, meanDegree: rung.meanDegree, inTrainingRange: rung.inTrainingRange });
+    const file = rung.family.startsWith('file:') ? rung.family.slice('file:'.length) : undefined;
+    ladder.push({ size: rung.size, scale: rung.scale, ...(file ? { file } : {}), depthMean: rung.depthMean, meanDegree: rung.meanDegree, inTrainingRange: rung.inTrainingRange });
     baselines.push({ size: rung.size, scale: rung.scale, ...base, noArmBeatsConstant: Boolean(rung.noArmBeatsConstant) });
-    if (rung.noArmBeatsConstant) noSkillRungs.push(sizeLabel(rung.size, rung.scale));
+    if (rung.noArmBeatsConstant) noSkillRungs.push(file ? `${file} (n = ${rung.size})` : sizeLabel(rung.size, rung.scale));
     const byName = new Map(rung.arms.map((a) => [a.arm, a]));
     rankings.push({
       size: rung.size,
+      ...(file ? { file } : {}),
       scale: rung.scale,
       depthMean: rung.depthMean,
       order: rung.ranking
@@ -433,6 +441,7 @@ export function buildEvidence(doc: ResultsDocument): EvidenceView {
       verdicts.push({
         size: rung.size,
         scale: rung.scale,
+        ...(file ? { file } : {}),
         depthMean: rung.depthMean,
         meanDegree: rung.meanDegree,
         inTrainingRange: rung.inTrainingRange,
@@ -558,7 +567,7 @@ export function headlineOf(verdicts: readonly VerdictRow[], gates: readonly Gate
   const v = verdicts.find((row) => row.size === farthest.size && row.scale === farthest.scale && row.tested === farthest.tested)!;
   const wins = Math.round(v.probabilityOfImprovement * v.n);
   const winner = v.kind === 'a-better' ? v.a : v.kind === 'b-better' ? v.b : null;
-  const at = v.scale === 1 ? `At n = ${v.size}` : `At n = ${v.size} (weights ×${v.scale})`;
+  const at = v.file ? `On ${v.file} (n = ${v.size})` : v.scale === 1 ? `At n = ${v.size}` : `At n = ${v.size} (weights ×${v.scale})`;
   const missed = gates.filter((g) => g.status === 'not-fitted' && (g.arm === v.a || g.arm === v.b));
   const missedWords = missed.length
     ? `${listWords(missed.map((g) => g.arm))} missed the fit gate: in-distribution relative error ${listWords(missed.map((g) => percent(g.median)))} against the ${percent(missed[0]!.gate)} gate`

@@ -287,7 +287,7 @@ export class FfVerdictTable extends LitElement {
         <tbody>
           ${this.rankings.map(
             (r) => html`<tr>
-              <td class="l num">n = ${r.size}${r.scale !== 1 ? html`, ×${r.scale}` : nothing}</td>
+              <td class="l num">${r.file ? html`${r.file}, ` : nothing}n = ${r.size}${r.scale !== 1 ? html`, ×${r.scale}` : nothing}</td>
               <td class="l order">
                 ${r.order.map(
                   (o, i) => html`${i > 0 ? html`<span class="lt"> &lt; </span>` : nothing}${this.tag(o.arm)}
@@ -351,7 +351,7 @@ export class FfVerdictTable extends LitElement {
           <tbody>
             ${this.verdicts.map(
               (v) => html`<tr data-size=${v.size} data-tested=${v.tested ? 'yes' : 'no'} data-kind=${v.kind}>
-                <td class="l num" data-label="Test size">n = ${v.size}${v.scale !== 1 ? html`, ×${v.scale}` : nothing}${v.inTrainingRange ? html`<span class="star" title="inside the training size range">*</span>` : nothing}</td>
+                <td class="l num" data-label="Test size">${v.file ? html`${v.file}, ` : nothing}n = ${v.size}${v.scale !== 1 ? html`, ×${v.scale}` : nothing}${v.inTrainingRange ? html`<span class="star" title="inside the training size range">*</span>` : nothing}</td>
                 <td class="l shift" data-label="What shifted">depth ${num(v.depthMean, 2)} · <wbr />degree ${num(v.meanDegree, 2)}</td>
                 <td class="num" data-constant data-label="best constant">${num(v.constant)}${Number.isFinite(v.constantTrain) ? html`<span class="sub">train-fitted ${num(v.constantTrain)}</span>` : nothing}</td>
                 <td class="l" data-label="Pair">${this.tag(v.a)} vs ${this.tag(v.b)}</td>
