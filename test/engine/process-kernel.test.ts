@@ -206,9 +206,9 @@ describe('fused process kernels give the stock composition’s bits', () => {
     for (const [name, w] of stock.weights) expect([name, differing(fused.weights.get(name)!, w)]).toEqual([name, 0]);
   });
 
-  it('a forward and backward pass of 10 steps launches under 150 kernels instead of about 60 more per step', async () => {
+  for (const aggregator of ['sum', 'smooth-max']) it(`a forward and backward pass of 10 steps (${aggregator}) launches under 150 kernels instead of about 60 more per step`, async () => {
     const data = instances('er', 16, [1, 10], 13);
-    const options = modelSchema.parse({ hidden: 32, aggregator: 'sum', steps: { rule: 'fixed', count: 10, trainJitter: 0 } });
+    const options = modelSchema.parse({ hidden: 32, aggregator, steps: { rule: 'fixed', count: 10, trainJitter: 0 } });
     const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
     const batch = uploadBatch(makeBatch(data, TRANSFORMS));
     const launches = async (fused: boolean) => {
