@@ -4,6 +4,7 @@
  * residual, what a practitioner expects, and whether it holds (✓ / ✗, or —
  * where the architecture promises nothing and the number is only reported).
  */
+import { armLetter } from './palette.ts';
 import { LitElement, css, html, nothing } from 'lit';
 import type { AuditRow } from '../inspect/audit.ts';
 import { controls } from './styles.ts';
@@ -11,6 +12,8 @@ import { num } from './format.ts';
 
 export interface AuditArm {
   arm: string;
+  /** The arm's position in the spec: its letter code and marks. */
+  index: number;
   color: string;
   /** Seeds the rows are a mean over. */
   seeds: number;
@@ -174,7 +177,7 @@ export class FfAuditTable extends LitElement {
           ${lines.map(
             (l) => html`<tr class=${l.first ? 'group' : ''} data-check=${l.row.check} data-arm=${l.arm.arm}>
               ${l.first ? html`<td class="check" rowspan=${l.span}>${l.row.check}</td><td rowspan=${l.span}>${l.row.component}</td>` : nothing}
-              <td><span class="arm" style=${`--c: ${l.arm.color}`}>${l.arm.arm}</span>${l.row.subject !== l.arm.arm ? html`<span class="subject">${l.row.subject}</span>` : nothing}</td>
+              <td><span class="arm" style=${`--c: ${l.arm.color}`}><b>${armLetter(l.arm.index)}</b> ${l.arm.arm}</span>${l.row.subject !== l.arm.arm ? html`<span class="subject">${l.row.subject}</span>` : nothing}</td>
               <td class="num" title=${`${l.row.measure} residual over ${l.row.samples} samples`}>${num(l.row.mean)}</td>
               <td class="num">${num(l.row.worst)}</td>
               <td class="expected">${l.row.expected}</td>

@@ -289,10 +289,10 @@ export class FfProbes extends LitElement {
   private results(doc: ProbeDocument) {
     const plots = this.plots(doc);
     const cols = this.columns();
-    const audit: AuditArm[] = doc.arms.flatMap((a) => (a.mean ? [{ arm: a.arm, color: armColor(a.armIndex), seeds: a.mean.seeds, rows: a.mean.audit }] : []));
+    const audit: AuditArm[] = doc.arms.flatMap((a) => (a.mean ? [{ arm: a.arm, index: a.armIndex, color: armColor(a.armIndex), seeds: a.mean.seeds, rows: a.mean.audit }] : []));
     const traces: ArmTrace[] = doc.arms.flatMap((a) => {
       const run = a.runs.find((r) => r.trace);
-      return run?.trace ? [{ arm: a.arm, color: armColor(a.armIndex), trace: run.trace }] : [];
+      return run?.trace ? [{ arm: a.arm, index: a.armIndex, color: armColor(a.armIndex), trace: run.trace }] : [];
     });
     const failed = doc.arms.flatMap((a) => a.runs.filter((r) => r.status !== 'ok').map((r) => `${a.arm} (seed ${r.seed}): ${r.status}${r.reason ? ` — ${r.reason}` : ''}`));
     return html`<p class="meta" data-probe-doc=${doc.specHash}>

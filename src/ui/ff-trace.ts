@@ -5,6 +5,7 @@
  * slider (keyboard: arrows, Home, End), and the mean error at every step.
  * Exportable like the other figures (SVG / PNG of the graph at the chosen k).
  */
+import { armLetter } from './palette.ts';
 import { LitElement, css, html, nothing, svg, type PropertyValues } from 'lit';
 import type { AlignmentTrace } from '../inspect/trace.ts';
 import { traceFigure } from './probe-plots.ts';
@@ -14,6 +15,8 @@ import { num } from './format.ts';
 
 export interface ArmTrace {
   arm: string;
+  /** The arm's position in the spec: its letter code. */
+  index: number;
   color: string;
   trace: AlignmentTrace;
 }
@@ -196,7 +199,7 @@ export class FfTrace extends LitElement {
             <legend>Arm</legend>
             ${this.traces.map(
               (a, i) => html`<label style=${`--c: ${a.color}`}
-                ><input type="radio" name="trace-arm" .checked=${i === this.armIndex} @change=${() => this.chooseArm(i)} />${a.arm}</label
+                ><input type="radio" name="trace-arm" .checked=${i === this.armIndex} @change=${() => this.chooseArm(i)} />${armLetter(a.index)} ${a.arm}</label
               >`,
             )}
           </fieldset>`
