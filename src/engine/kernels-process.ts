@@ -167,9 +167,10 @@ function totalFloats(sizes: Record<string, number>): number {
 
 // ------------------------------------------------------ elementwise ----
 // Elementwise work runs on the SIMD module (src/engine/simd/kernels.wat: relu, leaky_relu, relu_grad,
-// leaky_grad, add, add_row, segment_sum, gather_rows, copy_block), each with the stock kernel's rule;
-// what is left here in JavaScript is copying, transposing the weights once per launch, and the mean's
-// division (one float32 division per value either way). F is a Float32Array over the heap; indices
+// leaky_grad, add, add_row, segment_sum, gather_rows, copy_block, neg, shift_div, mul_div_neg), each
+// with the stock kernel's rule; what is left here in JavaScript is copying, transposing the weights
+// once per launch, the smooth aggregators' node-sized steps, and the mean's division (one float32
+// division per value either way). F is a Float32Array over the heap; indices
 // are float indices (byte pointer >> 2).
 
 function copy(F: Float32Array, out: number, x: number, n: number): void {
@@ -199,7 +200,8 @@ function checkIds(I: Int32Array, ids: number, E: number, N: number, what: string
 //   peak = segmentMax(x)   shifted = (x − peak[dst]) / τ   total = segmentSum(exp(shifted))
 //   safe = total + (1 − hasIncoming)   out = (peak + log(safe)·τ) · hasIncoming
 // and smooth-min is −smoothMax(−m). Each elementwise float32 operation is one rounding, as the stock
-// kernel's (Math.fround of a double +, −, ×, ÷ of two float32 values is exactly the float32 result).
+// kernel's: the edge-sized steps on the SIMD module (neg, shift_div, mul_div_neg), the node-sized
+// ones here (Math.fround of a double +, −, ×, ÷ of two float32 values is exactly the float32 result).
 // exp and log are the backend's own C kernels run on our buffers: their bits come from its
 // implementation, which Math.exp / Math.log do not reproduce.
 
@@ -355,20 +357,12 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
       const negate = at.aggregator === 'smooth-min';
       let x = s['m']!;
       if (negate) {
-        const from = floatIndex(x);
-        const to = floatIndex(s['negated']!);
-        for (let i = 0; i < EH; i++) F[to + i] = -F[from + i]!;
+        raw.neg(x, s['negated']!, EH);
         x = s['negated']!;
       }
       raw.segmentExtreme(x, dst, s['peak']!, p('arg'), E, H, N, true);
-      const xi = floatIndex(x);
+      raw.shiftDiv(x, s['peak']!, dst, s['shifted']!, E, H, tau);
       const peak = floatIndex(s['peak']!);
-      const shifted = floatIndex(s['shifted']!);
-      const ids = floatIndex(dst);
-      for (let e = 0; e < E; e++) {
-        const row = I[ids + e]! * H;
-        for (let c = 0; c < H; c++) F[shifted + e * H + c] = Math.fround(F[xi + e * H + c]! - F[peak + row + c]!) / tau;
-      }
       backendUnary(backend, 'Exp', s['shifted']!, p('exp'), EH);
       renew();
       raw.segmentSum(p('exp'), dst, s['total']!, E, H, N);
@@ -604,23 +598,12 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
         }
       }
       raw.gatherRows(s['dSafe']!, dst, s['dExp']!, E, H);
-      const dExp = fi(s['dExp']!);
-      const exp = fi(p('exp'));
-      const dShifted = fi(s['dShifted']!);
-      const dNeg = fi(s['dNeg']!);
-      for (let i = 0; i < EH; i++) {
-        const q = Math.fround(Math.fround(F[dExp + i]! * F[exp + i]!) / tau);
-        F[dShifted + i] = q;
-        F[dNeg + i] = -q;
-      }
+      raw.mulDivNeg(s['dExp']!, p('exp'), s['dShifted']!, s['dNeg']!, EH, tau);
       raw.segmentSum(s['dNeg']!, dst, s['dShare']!, E, H, N);
       raw.add(s['dPeak']!, s['dShare']!, s['dPeak']!, NH);
       raw.scatterByArg(s['dPeak']!, p('arg'), s['dArg']!, E, NH, H);
       raw.add(s['dShifted']!, s['dArg']!, s['dm']!, EH);
-      if (negate) {
-        const dm = fi(s['dm']!);
-        for (let i = 0; i < EH; i++) F[dm + i] = -F[dm + i]!;
-      }
+      if (negate) raw.neg(s['dm']!, s['dm']!, EH);
     } else {
       if (counts != null) {
         for (let v = 0; v < N; v++) {

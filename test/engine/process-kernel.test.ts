@@ -127,6 +127,9 @@ describe('fused process kernels give the stock composition’s bits', () => {
     for (const aggregator of ['smooth-max', 'smooth-min']) {
       compareWays({ aggregator, aggregatorTemperature: 0.37, hidden: 16 }, small, 10, true);
       compareWays({ aggregator, aggregatorTemperature: 3, hidden: 8, activation: 'leaky-relu', bias: false }, small, 3, true);
+      // widths that are not a multiple of 4 take the SIMD loops' one-by-one tails
+      compareWays({ aggregator, aggregatorTemperature: 0.3, hidden: 7 }, small, 4, true);
+      compareWays({ aggregator, aggregatorTemperature: 0.7, hidden: 10, activation: 'leaky-relu' }, small, 4, true);
       compareWays({ aggregator, aggregatorTemperature: 0.1 }, ties, 6, true);
       compareWays({ aggregator, aggregatorTemperature: 1, activation: 'leaky-relu' }, ties, 6, true);
       compareWays({ aggregator, aggregatorTemperature: 0.1 }, dags, 1, true);

@@ -17,6 +17,8 @@
 ;;   equal3       a == b (1 byte per result) over a broadcast of up to 3 axes; exact.
 ;;   col_sum      out[c] = ((0 + x[0,c]) + x[1,c]) + … in row order, the order of
 ;;                the backend's Sum after it transposes the reduced axes inward.
+;;   neg, shift_div, mul_div_neg   the smooth aggregators' elementwise steps, one
+;;                float32 operation each (Neg, Sub then RealDiv, Mul then RealDiv).
 ;; Pointers are byte offsets into the shared memory; sizes are element counts.
 (module
   (import "env" "memory" (memory 1))
@@ -686,6 +688,69 @@
       (local.set $x (i32.add (local.get $x) (local.get $rowBytes)))
       (local.set $ids (i32.add (local.get $ids) (i32.const 4)))
       (local.set $e (i32.add (local.get $e) (i32.const 1))) (br $l))))
+
+  ;; ---- the smooth aggregators' elementwise steps (src/engine/kernels-process.ts) ----
+
+  ;; out = −x (a sign flip, as Neg)
+  (func (export "neg") (param $x i32) (param $out i32) (param $n i32)
+    (local $i i32) (local $n4 i32)
+    (local.set $n4 (i32.and (local.get $n) (i32.const -4)))
+    (block $done (loop $l
+      (br_if $done (i32.ge_u (local.get $i) (local.get $n4)))
+      (v128.store (local.get $out) (f32x4.neg (v128.load (local.get $x))))
+      (local.set $x (i32.add (local.get $x) (i32.const 16))) (local.set $out (i32.add (local.get $out) (i32.const 16)))
+      (local.set $i (i32.add (local.get $i) (i32.const 4))) (br $l)))
+    (block $done2 (loop $l2
+      (br_if $done2 (i32.ge_u (local.get $i) (local.get $n)))
+      (f32.store (local.get $out) (f32.neg (f32.load (local.get $x))))
+      (local.set $x (i32.add (local.get $x) (i32.const 4))) (local.set $out (i32.add (local.get $out) (i32.const 4)))
+      (local.set $i (i32.add (local.get $i) (i32.const 1))) (br $l2))))
+
+  ;; out[e, c] = (x[e, c] − p[ids[e], c]) / τ: sub(x, gatherRows(p)) then div by the scalar τ
+  (func (export "shift_div") (param $x i32) (param $p i32) (param $ids i32) (param $out i32) (param $E i32) (param $H i32) (param $tau f32)
+    (local $e i32) (local $c i32) (local $H4 i32) (local $row i32) (local $t v128)
+    (local.set $H4 (i32.and (local.get $H) (i32.const -4)))
+    (local.set $t (f32x4.splat (local.get $tau)))
+    (block $done (loop $l
+      (br_if $done (i32.ge_u (local.get $e) (local.get $E)))
+      (local.set $row (i32.add (local.get $p) (i32.shl (i32.mul (i32.load (local.get $ids)) (local.get $H)) (i32.const 2))))
+      (local.set $c (i32.const 0))
+      (block $cdone (loop $cl
+        (br_if $cdone (i32.ge_u (local.get $c) (local.get $H4)))
+        (v128.store (local.get $out) (f32x4.div (f32x4.sub (v128.load (local.get $x)) (v128.load (local.get $row))) (local.get $t)))
+        (local.set $x (i32.add (local.get $x) (i32.const 16))) (local.set $row (i32.add (local.get $row) (i32.const 16)))
+        (local.set $out (i32.add (local.get $out) (i32.const 16)))
+        (local.set $c (i32.add (local.get $c) (i32.const 4))) (br $cl)))
+      (block $tdone (loop $tl
+        (br_if $tdone (i32.ge_u (local.get $c) (local.get $H)))
+        (f32.store (local.get $out) (f32.div (f32.sub (f32.load (local.get $x)) (f32.load (local.get $row))) (local.get $tau)))
+        (local.set $x (i32.add (local.get $x) (i32.const 4))) (local.set $row (i32.add (local.get $row) (i32.const 4)))
+        (local.set $out (i32.add (local.get $out) (i32.const 4)))
+        (local.set $c (i32.add (local.get $c) (i32.const 1))) (br $tl)))
+      (local.set $ids (i32.add (local.get $ids) (i32.const 4)))
+      (local.set $e (i32.add (local.get $e) (i32.const 1))) (br $l))))
+
+  ;; q = (a·b) / τ; out = q and negOut = −q (the Exp gradient's product, RealDiv's, then Sub's −dy)
+  (func (export "mul_div_neg") (param $a i32) (param $b i32) (param $out i32) (param $negOut i32) (param $n i32) (param $tau f32)
+    (local $i i32) (local $n4 i32) (local $t v128) (local $q v128) (local $qs f32)
+    (local.set $n4 (i32.and (local.get $n) (i32.const -4)))
+    (local.set $t (f32x4.splat (local.get $tau)))
+    (block $done (loop $l
+      (br_if $done (i32.ge_u (local.get $i) (local.get $n4)))
+      (local.set $q (f32x4.div (f32x4.mul (v128.load (local.get $a)) (v128.load (local.get $b))) (local.get $t)))
+      (v128.store (local.get $out) (local.get $q))
+      (v128.store (local.get $negOut) (f32x4.neg (local.get $q)))
+      (local.set $a (i32.add (local.get $a) (i32.const 16))) (local.set $b (i32.add (local.get $b) (i32.const 16)))
+      (local.set $out (i32.add (local.get $out) (i32.const 16))) (local.set $negOut (i32.add (local.get $negOut) (i32.const 16)))
+      (local.set $i (i32.add (local.get $i) (i32.const 4))) (br $l)))
+    (block $done2 (loop $l2
+      (br_if $done2 (i32.ge_u (local.get $i) (local.get $n)))
+      (local.set $qs (f32.div (f32.mul (f32.load (local.get $a)) (f32.load (local.get $b))) (local.get $tau)))
+      (f32.store (local.get $out) (local.get $qs))
+      (f32.store (local.get $negOut) (f32.neg (local.get $qs)))
+      (local.set $a (i32.add (local.get $a) (i32.const 4))) (local.set $b (i32.add (local.get $b) (i32.const 4)))
+      (local.set $out (i32.add (local.get $out) (i32.const 4))) (local.set $negOut (i32.add (local.get $negOut) (i32.const 4)))
+      (local.set $i (i32.add (local.get $i) (i32.const 1))) (br $l2))))
 
   ;; out[e, :] = x[ids[e], :] (a copy of rows)
   (func (export "gather_rows") (param $x i32) (param $ids i32) (param $out i32) (param $E i32) (param $H i32)

@@ -40,6 +40,9 @@ interface Exports {
   add_row(x: number, b: number, out: number, rows: number, cols: number): void;
   segment_sum(x: number, ids: number, out: number, E: number, H: number, S: number): void;
   gather_rows(x: number, ids: number, out: number, E: number, H: number): void;
+  neg(x: number, out: number, n: number): void;
+  shift_div(x: number, p: number, ids: number, out: number, E: number, H: number, tau: number): void;
+  mul_div_neg(a: number, b: number, out: number, negOut: number, n: number, tau: number): void;
   equal3(a: number, b: number, out: number, d0: number, d1: number, d2: number, as0: number, as1: number, as2: number, bs0: number, bs1: number, bs2: number): void;
 }
 
@@ -120,6 +123,12 @@ export interface RawSimd {
   segmentSum(x: number, ids: number, out: number, E: number, H: number, S: number): void;
   /** out[e, :] = x[ids[e], :]. */
   gatherRows(x: number, ids: number, out: number, E: number, H: number): void;
+  /** out = −x (a sign flip, as the stock Neg). */
+  neg(x: number, out: number, n: number): void;
+  /** out[e, c] = (x[e, c] − p[ids[e], c]) / τ, each operation rounded to float32 (Sub, then RealDiv by a scalar). */
+  shiftDiv(x: number, p: number, ids: number, out: number, E: number, H: number, tau: number): void;
+  /** q = (a·b) / τ rounded after each operation; out = q, negOut = −q. */
+  mulDivNeg(a: number, b: number, out: number, negOut: number, n: number, tau: number): void;
 }
 
 /** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
@@ -216,6 +225,9 @@ function bind(backend: BackendWasm, memory: WebAssembly.Memory, exports: Exports
     addRow: (x, b, out, rows, cols) => exports.add_row(x, b, out, rows, cols),
     segmentSum: (x, ids, out, E, H, S) => exports.segment_sum(x, ids, out, E, H, S),
     gatherRows: (x, ids, out, E, H) => exports.gather_rows(x, ids, out, E, H),
+    neg: (x, out, n) => exports.neg(x, out, n),
+    shiftDiv: (x, p, ids, out, E, H, tau) => exports.shift_div(x, p, ids, out, E, H, tau),
+    mulDivNeg: (a, b, out, negOut, n, tau) => exports.mul_div_neg(a, b, out, negOut, n, tau),
   };
   return {
     raw,
