@@ -48,8 +48,10 @@ export class FfArmCard extends LitElement {
         width: 1.7em;
         height: 1.7em;
         border-radius: 50%;
-        background: var(--arm);
-        color: #fff;
+        /* Ink on card inside a ring of the arm's colour: arm colours reach 3:1, text needs 4.5:1. */
+        border: 3px solid var(--arm);
+        background: var(--card);
+        color: var(--ink);
         font-weight: 700;
         display: grid;
         place-items: center;
@@ -60,7 +62,7 @@ export class FfArmCard extends LitElement {
         min-width: 0;
         font-size: 1.15em;
         font-weight: 700;
-        color: var(--arm);
+        color: var(--ink);
       }
       .tools {
         display: flex;

@@ -9,6 +9,7 @@ import { validateSpec } from '../experiment/check.ts';
 import { SpecError, armModel, type ArmSpec, type ExperimentSpec, type ModelOptions, type StepRule } from '../experiment/spec.ts';
 import { canonicalJson } from '../util/hash.ts';
 import { taskInfo } from './catalogue.ts';
+import { armLetter } from './palette.ts';
 
 export type Draft = ExperimentSpec;
 export type ArmOverrides = ArmSpec['model'];
@@ -238,9 +239,8 @@ export interface ArmCardView {
   canRemove: boolean;
 }
 
-export function armLetter(index: number): string {
-  return index < 26 ? String.fromCharCode(65 + index) : `A${index - 25}`;
-}
+/** One letter code for an arm everywhere (cards, figures, tables, messages): palette.ts. */
+export { armLetter };
 
 export function armCards(draft: Draft, colorOf: (index: number) => string): ArmCardView[] {
   const task = taskInfo(draft.task);
