@@ -55,9 +55,25 @@ export interface CostEstimate {
   wallSeconds: number;
 }
 
-/** The estimate for the given runs (arm indices, one per run still to do) on `workers` workers. */
-export function estimateCost(spec: ExperimentSpec, armIndices: readonly number[], workers: number): CostEstimate {
-  const perArm = spec.arms.map((_, i) => runSeconds(spec, i));
+/** A finished run of this spec on this machine: its arm and its measured seconds. */
+export interface ObservedRun {
+  armIndex: number;
+  seconds: number;
+}
+
+/**
+ * The estimate for the given runs (arm indices, one per run still to do) on
+ * `workers` workers. Runs of the same spec already finished on this machine
+ * rescale the model by their median measured / modelled ratio (this machine's
+ * speed, other work sharing it).
+ */
+export function estimateCost(spec: ExperimentSpec, armIndices: readonly number[], workers: number, observed: readonly ObservedRun[] = []): CostEstimate {
+  const ratios = observed
+    .filter((r) => Number.isFinite(r.seconds) && r.seconds > 0 && r.armIndex < spec.arms.length)
+    .map((r) => r.seconds / runSeconds(spec, r.armIndex))
+    .sort((a, b) => a - b);
+  const scale = ratios.length ? ratios[Math.floor((ratios.length - 1) / 2)]! : 1;
+  const perArm = spec.arms.map((_, i) => scale * runSeconds(spec, i));
   const each = armIndices.map((a) => perArm[a] ?? 0);
   const workerSeconds = each.reduce((s, x) => s + x, 0);
   const lanes = Math.max(1, Math.min(workers, each.length));

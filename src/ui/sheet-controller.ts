@@ -336,7 +336,9 @@ export class SheetController implements ReactiveController {
   estimate(): CostEstimate | null {
     const v = this.model.validation;
     if (!v.ok || this.model.run.specHash !== specHash(v.spec)) return null;
-    return estimateCost(v.spec, this.runs.missing().map((p) => p.armIndex), this.model.workers);
+    // Only complete runs say how long a run takes (a diverged or failed one stopped early).
+    const observed = this.model.run.results.filter((r) => r.status === 'ok').map((r) => ({ armIndex: r.armIndex, seconds: r.seconds }));
+    return estimateCost(v.spec, this.runs.missing().map((p) => p.armIndex), this.model.workers, observed);
   }
 
   setWorkers(count: number): void {

@@ -49,4 +49,17 @@ describe('cost model', () => {
     expect(estimateCost(spec, [0], 8).wallSeconds).toBeCloseTo(one.workerSeconds / 4, 6);
     expect(estimateCost(spec, [], 2)).toEqual({ runs: 0, workerSeconds: 0, wallSeconds: 0 });
   });
+
+  it('rescales by the median measured / modelled ratio of runs already finished here', () => {
+    const { spec } = measured('quick-demo');
+    const plain = estimateCost(spec, [0, 1], 1);
+    const perRun = plain.workerSeconds / 2;
+    const slow = estimateCost(spec, [0, 1], 1, [
+      { armIndex: 0, seconds: 3 * perRun },
+      { armIndex: 1, seconds: 2 * perRun },
+      { armIndex: 0, seconds: 50 * perRun },
+    ]);
+    expect(slow.workerSeconds).toBeCloseTo(3 * plain.workerSeconds, 6);
+    expect(estimateCost(spec, [0, 1], 1, [{ armIndex: 0, seconds: NaN }]).workerSeconds).toBeCloseTo(plain.workerSeconds, 6);
+  });
 });
