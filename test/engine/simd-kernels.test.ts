@@ -13,7 +13,8 @@ import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import { initBackend } from '../../src/engine/backend.ts';
 import { setSimdKernelsEnabled, simdKernels } from '../../src/engine/simd/simd-kernels.ts';
-import { gatherPairAdd, segmentMax, segmentMin } from '../../src/model/ops.ts';
+import { gatherPairAdd, gatherRows, segmentMax, segmentMin, segmentSum } from '../../src/model/ops.ts';
+import { patchWasmMatMul, unpatchWasmMatMul } from '../../src/engine/kernels-matmul.ts';
 import { Rng } from '../../src/util/rng.ts';
 import { expectSameBits } from '../helpers.ts';
 import { compileKernels, renderBinaryModule } from '../../scripts/build-simd.mjs';
@@ -194,5 +195,116 @@ describe('concat, split and column sums on the SIMD module are bit-identical to 
     ]);
     expectSameBits(on, off);
     tf.dispose([x, w]);
+  });
+});
+
+/**
+ * The pointer-level functions the fused process kernels use, each against the
+ * stock op whose rule it copies (tf.relu, tf.leakyRelu, the Relu and LeakyRelu
+ * gradients, Add with and without a broadcast row, the segment sum and row
+ * gather, and a matmul summed in the stock scalar loop's k-blocks), on widths
+ * with SIMD tails and values with NaN, ±0, ±∞ and ties.
+ */
+describe('pointer-level functions for the fused process kernels', () => {
+  const backend = () => tf.backend() as unknown as BackendWasm;
+  const raw = () => simdKernels(backend())!.raw;
+  /** Copy values into a fresh block; returns its byte pointer. */
+  const put = (values: ArrayLike<number>, int = false): number => {
+    const r = raw();
+    const p = r.malloc(4 * Math.max(1, values.length));
+    if (int) new Int32Array(r.memory.buffer, p, values.length).set(values);
+    else new Float32Array(r.memory.buffer, p, values.length).set(values);
+    return p;
+  };
+  const take = (p: number, n: number) => Array.from(new Float32Array(raw().memory.buffer, p, n));
+  const special = (rng: Rng, n: number) => {
+    const v = values(rng, n);
+    if (n > 12) {
+      v[3] = Infinity;
+      v[4] = -Infinity;
+      v[7] = 0;
+      v[9] = -0;
+    }
+    return v;
+  };
+  const LEAKY = 0.01;
+
+  for (const n of [1, 3, 4, 13, 64, 101]) {
+    it(`relu, leaky relu, their gradients and adds for ${n} values`, () => {
+      const r = raw();
+      const rng = new Rng(n + 100);
+      const x = special(rng, n);
+      const dy = special(rng, n);
+      const px = put(x);
+      const pdy = put(dy);
+      const out = put(new Float32Array(n));
+      const check = (run: () => void, stock: () => tf.Tensor) => {
+        run();
+        const expected = Array.from(tf.tidy(stock).dataSync());
+        expectSameBits([take(out, n)], [expected]);
+      };
+      const X = () => tf.tensor1d(x);
+      const DY = () => tf.tensor1d(dy);
+      check(() => r.relu(px, out, n), () => tf.relu(X()));
+      check(() => r.leakyRelu(px, out, n, Math.fround(LEAKY)), () => tf.leakyRelu(X(), LEAKY));
+      check(() => r.reluGrad(pdy, px, out, n), () => tf.mul(DY(), tf.step(X())));
+      check(() => r.leakyGrad(pdy, px, out, n, Math.fround(LEAKY)), () => tf.where(tf.greater(X(), 0), DY(), tf.mul(DY(), LEAKY)));
+      check(() => r.add(px, pdy, out, n), () => tf.add(X(), DY()));
+      for (const p of [px, pdy, out]) r.free(p);
+    });
+  }
+
+  for (const [rows, cols] of [
+    [5, 7],
+    [9, 32],
+    [1, 3],
+  ] as const) {
+    it(`a row vector added to ${rows} x ${cols}, segment sum and row gather`, () => {
+      const r = raw();
+      const rng = new Rng(rows * 31 + cols);
+      const x = special(rng, rows * cols);
+      const b = values(rng, cols);
+      const ids = Array.from({ length: rows }, () => rng.int(0, 3));
+      const px = put(x);
+      const pb = put(b);
+      const pids = put(ids, true);
+      const out = put(new Float32Array(rows * cols));
+      r.addRow(px, pb, out, rows, cols);
+      expectSameBits([take(out, rows * cols)], [Array.from(tf.tidy(() => tf.add(tf.tensor2d(x, [rows, cols]), tf.tensor1d(b))).dataSync())]);
+      const sums = put(new Float32Array(4 * cols));
+      r.segmentSum(px, pids, sums, rows, cols, 4);
+      const idsT = tf.tensor1d(ids, 'int32');
+      expectSameBits([take(sums, 4 * cols)], [Array.from(tf.tidy(() => segmentSum(tf.tensor2d(x, [rows, cols]), idsT, 4)).dataSync())]);
+      r.gatherRows(sums, pids, out, rows, cols);
+      expectSameBits([take(out, rows * cols)], [Array.from(tf.tidy(() => gatherRows(segmentSum(tf.tensor2d(x, [rows, cols]), idsT, 4), idsT)).dataSync())]);
+      idsT.dispose();
+      for (const p of [px, pb, pids, out, sums]) r.free(p);
+    });
+  }
+
+  it('a product summed in 48-wide k-blocks equals the stock scalar matmul of a transposed operand', () => {
+    // The stock kernel (unpatched) on Aᵀ·B with K = 130 rows: the block rule kernels-process.ts reproduces.
+    const r = raw();
+    const rng = new Rng(5);
+    const [K, M, N] = [130, 6, 5];
+    const a = values(rng, K * M, false);
+    const b = values(rng, K * N, false);
+    const pa = put(a);
+    const pb = put(b);
+    const out = put(new Float32Array(M * N));
+    const block = put(new Float32Array(M * N));
+    for (let k0 = 0; k0 < K; k0 += 48) {
+      const target = k0 === 0 ? out : block;
+      r.mmStrided(pa + 4 * k0 * M, pb + 4 * k0 * N, target, Math.min(48, K - k0), M, N, 1, M);
+      if (k0 > 0) r.add(out, block, out, M * N);
+    }
+    unpatchWasmMatMul();
+    try {
+      const stock = tf.tidy(() => tf.matMul(tf.tensor2d(a, [K, M]), tf.tensor2d(b, [K, N]), true, false).dataSync());
+      expectSameBits([take(out, M * N)], [Array.from(stock)]);
+    } finally {
+      patchWasmMatMul();
+    }
+    for (const p of [pa, pb, out, block]) r.free(p);
   });
 });
