@@ -282,6 +282,34 @@ describe('pointer-level functions for the fused process kernels', () => {
     });
   }
 
+  it('the smooth aggregators\' steps: negation, shift by the segment peak over τ, product over τ', () => {
+    const r = raw();
+    const rng = new Rng(41);
+    const [E, H, S] = [23, 7, 5];
+    const tau = 0.37;
+    const x = special(rng, E * H);
+    const peak = values(rng, S * H);
+    const ids = Array.from({ length: E }, () => rng.int(0, S - 1));
+    const y = special(rng, E * H);
+    const px = put(x);
+    const pp = put(peak);
+    const pids = put(ids, true);
+    const py = put(y);
+    const out = put(new Float32Array(E * H));
+    const negOut = put(new Float32Array(E * H));
+    const X = () => tf.tensor2d(x, [E, H]);
+    r.neg(px, out, E * H);
+    expectSameBits([take(out, E * H)], [Array.from(tf.tidy(() => tf.neg(X())).dataSync())]);
+    const idsT = tf.tensor1d(ids, 'int32');
+    r.shiftDiv(px, pp, pids, out, E, H, Math.fround(tau));
+    expectSameBits([take(out, E * H)], [Array.from(tf.tidy(() => tf.div(tf.sub(X(), gatherRows(tf.tensor2d(peak, [S, H]), idsT)), tau)).dataSync())]);
+    r.mulDivNeg(px, py, out, negOut, E * H, Math.fround(tau));
+    const q = tf.tidy(() => Array.from(tf.div(tf.mul(X(), tf.tensor2d(y, [E, H])), tau).dataSync()));
+    expectSameBits([take(out, E * H), take(negOut, E * H)], [q, Array.from(tf.tidy(() => tf.neg(tf.tensor1d(q)).dataSync()))]);
+    idsT.dispose();
+    for (const p of [px, pp, pids, py, out, negOut]) r.free(p);
+  });
+
   it('a product summed in 48-wide k-blocks equals the stock scalar matmul of a transposed operand', () => {
     // The stock kernel (unpatched) on Aᵀ·B with K = 130 rows: the block rule kernels-process.ts reproduces.
     const r = raw();
