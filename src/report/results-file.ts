@@ -11,9 +11,11 @@
  * JSON has no NaN or Infinity: `JSON.stringify` writes both as null, so a
  * metric may read back as null; it becomes NaN (not a finite number), which
  * the comparison ranks as a blow-up exactly as it did before saving. The
- * fingerprint, though, tells NaN from Infinity, and null no longer does: when
- * a file holds such nulls, its recorded fingerprint cannot be recomputed, so
- * it is kept as recorded and marked unverified rather than replaced.
+ * fingerprint counts every non-finite value as null, so it survives the trip;
+ * files from an older engine took it over "NaN"/"Infinity", which null no
+ * longer tells apart: when such a file holds nulls and its recorded
+ * fingerprint does not recompute, it is kept as recorded and marked
+ * unverified rather than replaced.
  */
 import { z } from 'zod';
 import { buildResults, RESULTS_KIND, type EngineInfo, type ResultsDocument } from '../experiment/results.ts';

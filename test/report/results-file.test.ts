@@ -43,15 +43,21 @@ describe('results files for the report', () => {
   const doc = buildResults(spec, runs(), engine);
   const text = JSON.stringify(doc, null, 1);
 
-  it('reads back non-finite values as NaN: same verdicts; the recorded fingerprint is kept, marked unverified', () => {
+  it('reads back non-finite values as NaN with the same verdicts, and verifies the fingerprint (non-finite counts as null in it)', () => {
     expect(text).toContain('"mae": null');
     const read = readResultsText(text, 'results.json');
-    // Infinity and NaN both became null: the fingerprint (which tells them apart) cannot be recomputed.
-    expect(read).toMatchObject({ fingerprintMismatch: null, fingerprintUnverified: true });
+    expect(read).toMatchObject({ fingerprintMismatch: null, fingerprintUnverified: false });
     expect(read.doc.fingerprint).toBe(doc.fingerprint);
     expect(read.doc.comparison.rungs.map((r) => r.pairs.map((p) => [p.verdict.kind, p.verdict.n]))).toEqual(
       doc.comparison.rungs.map((r) => r.pairs.map((p) => [p.verdict.kind, p.verdict.n])),
     );
+  });
+
+  it('keeps, marked unverified, a fingerprint an older engine took over non-finite values that JSON cannot tell apart', () => {
+    const older = { ...doc, fingerprint: '0123456789ab' };
+    const read = readResultsText(JSON.stringify(older), 'results.json');
+    expect(read).toMatchObject({ fingerprintMismatch: null, fingerprintUnverified: true });
+    expect(read.doc.fingerprint).toBe('0123456789ab');
   });
 
   it('flags a fingerprint that finite runs do not give, and shows the recomputed one', () => {
