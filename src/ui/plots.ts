@@ -77,15 +77,16 @@ export function endLabelNudges(values: readonly number[], span: number, lineHeig
 /** Plain decimals on an error axis (a log axis would otherwise print "10m"). */
 const errorTicks = { tickFormat: plainNumber };
 
-function ladderAt(view: EvidenceView, size: number, scale = 1): LadderRow | undefined {
+function ladderAt(view: Pick<EvidenceView, 'ladder'>, size: number, scale = 1): LadderRow | undefined {
   return view.ladder.find((r) => r.size === size && r.scale === scale) ?? view.ladder.find((r) => r.size === size);
 }
 
-/** "64" over "depth 7.1": what actually shifted, under every node count. */
-function sizeTick(view: EvidenceView) {
+/** "64" over "depth 7.1": what actually shifted, under every node count; a graph file's rung also names the file. */
+export function sizeTick(view: Pick<EvidenceView, 'ladder'>) {
   return (size: number) => {
     const row = ladderAt(view, size);
-    return row && Number.isFinite(row.depthMean) ? `${size}\ndepth ${num(row.depthMean, 2)}` : String(size);
+    const head = row?.file ? `${row.file}\n${size}` : String(size);
+    return row && Number.isFinite(row.depthMean) ? `${head}\ndepth ${num(row.depthMean, 2)}` : head;
   };
 }
 

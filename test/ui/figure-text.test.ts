@@ -1,7 +1,7 @@
 /** Figure text: plain-decimal ticks, stacked labels at line ends, and key markers. */
 import { describe, expect, it } from 'vitest';
 import { plainNumber } from '../../src/ui/format.ts';
-import { endLabelNudges } from '../../src/ui/plots.ts';
+import { endLabelNudges, sizeTick } from '../../src/ui/plots.ts';
 import { symbolPath } from '../../src/ui/figure-key.ts';
 import { ARM_SYMBOLS } from '../../src/ui/palette.ts';
 
@@ -26,5 +26,15 @@ describe('endLabelNudges', () => {
 describe('symbolPath', () => {
   it('draws a closed path for every arm marker shape', () => {
     for (const symbol of ARM_SYMBOLS) expect(symbolPath(symbol, 10, 10, 4)).toMatch(/^M.*Z$/);
+  });
+});
+
+describe('sizeTick', () => {
+  it('puts the depth under each size, and the file name over a graph file\'s rung', () => {
+    const row = { scale: 1, meanDegree: 3, inTrainingRange: false };
+    const tick = sizeTick({ ladder: [{ ...row, size: 24, depthMean: 4.25 }, { ...row, size: 49, depthMean: 7, file: 'us-states.csv' }] });
+    expect(tick(24)).toBe('24\ndepth 4.3');
+    expect(tick(49)).toBe('us-states.csv\n49\ndepth 7');
+    expect(tick(12)).toBe('12');
   });
 });
