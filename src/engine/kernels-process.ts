@@ -5,8 +5,9 @@
  *   m = act(pre)·W₂ (+ b₂)         a = ⊕_{e→v} m_e        (sum, mean, max, min, smooth-max, smooth-min)
  *   h ← h + (act([h, a, x̂]·W_u (+ b_u)))·W_u2 (+ b_u2)
  *
- * as ONE kernel forward and ONE kernel backward, for the mlp message and mlp
- * update. Why: the presets' batches are tiny (about 150 nodes and 350 edges),
+ * — or, with a semiring message layer, m = (h ⊗ W)[src] + ê·W_e (+ b) with
+ * (h ⊗ W)_j = min_k / max_k (h_k + W_kj) or its smooth log-sum-exp version —
+ * as ONE kernel forward and ONE kernel backward, with the mlp update. Why: the presets' batches are tiny (about 150 nodes and 350 edges),
  * so the stock composition spent most of a training step in per-launch
  * bookkeeping — about 97 tfjs kernel launches per message-passing step, 2,700
  * per training step. Fused, a whole training step launches a few dozen.
@@ -40,9 +41,14 @@ export const PROCESS_KERNELS = { forward: 'FarfieldProcess', backward: 'Farfield
 
 export type ProcessAggregator = 'sum' | 'mean' | 'max' | 'min' | 'smooth-max' | 'smooth-min';
 export type ProcessActivation = 'relu' | 'leaky-relu';
+/** The message layer: the mlp, or a semiring layer m_e = (h ⊗ W)_src + edge term (src/model/semiring.ts). */
+export type ProcessMessage = 'mlp' | 'min-plus' | 'max-plus' | 'smooth-min-plus' | 'smooth-max-plus';
 
 export interface ProcessAttrs {
   steps: number;
+  message: ProcessMessage;
+  /** τ of the smooth semiring layers (unused by the others). */
+  messageTemperature: number;
   aggregator: ProcessAggregator;
   /** τ of the smooth aggregators (unused by the others). */
   temperature: number;
@@ -92,6 +98,11 @@ interface StepLayout {
   /** Smooth aggregators: exp of the shifted messages [E, H] and log's argument [N, H], which their gradients read. */
   exp: number;
   safe: number;
+  /** Semiring layers: the senders' values (hard) or the maxima of the scaled sums (smooth), [N, Hp]. */
+  sy: number;
+  /** Smooth semiring layers: exp of the shifted sums [N, H, Hp] and their sums over k [N, Hp]. */
+  sb: number;
+  sc: number;
   size: number;
 }
 
@@ -104,9 +115,17 @@ function kindOf(aggregator: ProcessAggregator): AggregatorKind {
   return 'additive';
 }
 
-function stepLayout(N: number, E: number, H: number, kind: AggregatorKind): StepLayout {
+/** The message layer's family: the mlp, a hard (min / max) or a smooth (log-sum-exp) semiring layer. */
+type MessageKind = 'mlp' | 'hard' | 'smooth';
+
+function messageKindOf(message: ProcessMessage): MessageKind {
+  if (message === 'mlp') return 'mlp';
+  return message === 'smooth-min-plus' || message === 'smooth-max-plus' ? 'smooth' : 'hard';
+}
+
+function stepLayout(N: number, E: number, H: number, kind: AggregatorKind, message: MessageKind): StepLayout {
   const NH = N * H;
-  const EH = E * H;
+  const EH = message === 'mlp' ? E * H : 0;
   const h = 0;
   const pre = h + NH;
   const act = pre + EH;
@@ -115,8 +134,12 @@ function stepLayout(N: number, E: number, H: number, kind: AggregatorKind): Step
   const hidden = x + NH;
   const arg = hidden + NH;
   const exp = arg + (kind === 'additive' ? 0 : NH);
-  const safe = exp + (kind === 'smooth' ? EH : 0);
-  return { h, pre, act, concat, x, hidden, arg, exp, safe, size: safe + (kind === 'smooth' ? NH : 0) };
+  const safe = exp + (kind === 'smooth' ? E * H : 0);
+  const NHp = N * padded(H);
+  const sy = safe + (kind === 'smooth' ? NH : 0);
+  const sb = sy + (message === 'mlp' ? 0 : NHp);
+  const sc = sb + (message === 'smooth' ? NHp * H : 0);
+  return { h, pre, act, concat, x, hidden, arg, exp, safe, sy, sb, sc, size: sc + (message === 'smooth' ? NHp : 0) };
 }
 
 // ------------------------------------------------------------ scratch ----
@@ -249,6 +272,43 @@ function hasIncomingOf(I: Int32Array, dst: number, E: number, N: number): Float3
   return has;
 }
 
+// ---------------------------------------------------- semiring layers ----
+// The semiring message layer m = gather(semiringDense(h, W), src) + edge term, op by op as
+// src/model/semiring.ts and tfjs run it: sums[n, k, j] = h[n, k] + W[k, j] (one float32 add), then
+//   hard    y = min_k / max_k sums (the stock reduction keeps the first of equal values: v < y, v > y)
+//   smooth  q = sums / d (d = τ, or −τ for smooth-min-plus), peak = max_k q, b = exp(q − peak),
+//           c = Σ_k b (from 0, in k order), y = (peak + log c) · d
+// exp and log are the backend's own C kernels (backendUnary above). Their gradients are tfjs's: max/min
+// send dy to EVERY k equal to the result (mul by a cast Equal), and the broadcasting add's gradient
+// sums over j for h and over n for W, each from 0 in order. In the smooth layer two tensors get two
+// shares each, added in the tape's reverse order: the peak (the final add's dRes first, then the
+// shift's −Σ_k dc·b) and q (the shift's dc·b first, then max's). The stash keeps y (hard) or the
+// peak, exp's output and its sums over k (smooth); q and the sums are recomputed, the same float32
+// operations giving the same bits.
+
+// The [N, H, H] steps run on the SIMD module (semiring_hard, semiring_shift, semiring_totals and their
+// gradients semiring_hard_grad, semiring_smooth_grad), vectorised over j with W and the [., H] blocks
+// padded to Hp = H rounded up to 4 columns; every lane is its own sequence of float32 operations, so
+// the order of each sum is the stock one (over k for c, over j for dh, over n for dW).
+
+/** H rounded up to whole 4-wide vectors. */
+const padded = (H: number) => (H + 3) & ~3;
+
+/** W [H, H] copied into [H, Hp] with zero padding columns. */
+function padWeight(raw: RawSimd, F: Float32Array, w: number, out: number, H: number): void {
+  const Hp = padded(H);
+  raw.copyBlock(w, out, H, H, H, Hp);
+  for (let k = 0; k < H; k++) F.fill(0, (out >> 2) + k * Hp + H, (out >> 2) + (k + 1) * Hp);
+}
+
+/** Smooth layer, after log: y[n, j] = (peak + log c) · d, from the padded blocks into [N, H]. */
+function semiringFinish(F: Float32Array, peak: number, logs: number, y: number, N: number, H: number, d: number): void {
+  const Hp = padded(H);
+  for (let n = 0; n < N; n++) {
+    for (let j = 0; j < H; j++) F[y + n * H + j] = Math.fround(Math.fround(F[peak + n * Hp + j]! + F[logs + n * Hp + j]!) * d);
+  }
+}
+
 // ------------------------------------------------------------ kernels ----
 
 interface Tensors {
@@ -259,6 +319,8 @@ function attrsOf(attrs: tf.NamedAttrMap | undefined): ProcessAttrs {
   const a = (attrs ?? {}) as unknown as ProcessAttrs;
   return {
     steps: a.steps,
+    message: a.message,
+    messageTemperature: a.messageTemperature,
     aggregator: a.aggregator,
     temperature: a.temperature,
     activation: a.activation,
@@ -288,7 +350,8 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   const E = t['src']!.shape[0]!;
   const T = at.steps;
   const kind = kindOf(at.aggregator);
-  const layout = stepLayout(N, E, H, kind);
+  const message = messageKindOf(at.message);
+  const layout = stepLayout(N, E, H, kind, message);
   const NH = N * H;
   const EH = E * H;
 
@@ -297,7 +360,9 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   // Outside a tape nothing is kept: one step's worth of values is reused. The state lives in the output
   // and is updated in place (every read of hᵗ⁻¹ comes before the residual add that overwrites it).
   const sizes = {
-    P: 2 * NH,
+    P: message === 'mlp' ? 2 * NH : 0,
+    ...(message !== 'mlp' ? { senders: NH, wp: H * padded(H) } : {}),
+    ...(message === 'smooth' ? { sums: N * H * padded(H), semiringLogs: N * padded(H) } : {}),
     m: EH,
     a: NH,
     out: NH,
@@ -309,9 +374,11 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   const src = ptr('src');
   const dst = ptr('dst');
   const bias = (has: boolean, name: string) => (has ? ptr(name) : 0);
-  const b2m = bias(at.hasMessageBias, 'b2m');
+  const b2m = message === 'mlp' ? bias(at.hasMessageBias, 'b2m') : 0;
   const bu = bias(at.hasUpdateBias, 'bu');
   const b2u = bias(at.hasOutputBias, 'b2u');
+  /** The smooth semiring layers' divisor and factor, as the stock float32 scalar: τ, or −τ for smooth-min-plus. */
+  const semiringScale = Math.fround(at.message === 'smooth-min-plus' ? -at.messageTemperature : at.messageTemperature);
 
   // Views only now, after every allocation (and renewed after the backend's own kernels, which may allocate).
   let F = new Float32Array(raw.memory.buffer);
@@ -338,16 +405,37 @@ function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; 
   const h = raw.offset(hOut);
   const hi = floatIndex(h);
   copy(F, hi, floatIndex(raw.offset(encoded)), NH);
+  const Hp = padded(H);
+  if (message !== 'mlp') padWeight(raw, F, ptr('ws'), s['wp']!, H);
   for (let step = 0; step < T; step++) {
     const base = stepBase(step);
     const p = (k: keyof StepLayout) => base + 4 * layout[k];
     if (stash != null) copy(F, floatIndex(p('h')), hi, NH);
-    // message: first layer per operand, gathered per edge with the constant edge term
-    matmul(raw, h, ptr('jm'), s['P']!, H, N, 2 * H, 0, false);
-    raw.gatherPairAdd(s['P']!, src, dst, ptr('edgeTerm'), p('pre'), E, H);
-    if (at.activation === 'relu') raw.relu(p('pre'), p('act'), EH);
-    else raw.leakyRelu(p('pre'), p('act'), EH, LEAKY);
-    matmul(raw, p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
+    if (message === 'mlp') {
+      // message: first layer per operand, gathered per edge with the constant edge term
+      matmul(raw, h, ptr('jm'), s['P']!, H, N, 2 * H, 0, false);
+      raw.gatherPairAdd(s['P']!, src, dst, ptr('edgeTerm'), p('pre'), E, H);
+      if (at.activation === 'relu') raw.relu(p('pre'), p('act'), EH);
+      else raw.leakyRelu(p('pre'), p('act'), EH, LEAKY);
+      matmul(raw, p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
+    } else {
+      // message: the semiring layer on the nodes, gathered by sender, plus the edge term (two stock ops)
+      const senders = s['senders']!;
+      if (message === 'hard') {
+        raw.semiringHard(h, s['wp']!, p('sy'), N, H, Hp, at.message === 'min-plus');
+        raw.copyBlock(p('sy'), senders, N, H, Hp, H);
+      } else {
+        raw.semiringShift(h, s['wp']!, p('sy'), s['sums']!, N, H, Hp, semiringScale);
+        backendUnary(backend, 'Exp', s['sums']!, p('sb'), N * H * Hp);
+        renew();
+        raw.semiringTotals(p('sb'), p('sc'), N, H, Hp);
+        backendUnary(backend, 'Log', p('sc'), s['semiringLogs']!, N * Hp);
+        renew();
+        semiringFinish(F, floatIndex(p('sy')), floatIndex(s['semiringLogs']!), floatIndex(senders), N, H, semiringScale);
+      }
+      raw.gatherRows(senders, src, s['m']!, E, H);
+      raw.add(s['m']!, ptr('edgeTerm'), s['m']!, EH);
+    }
     // aggregate
     const a = floatIndex(s['a']!);
     if (kind === 'extreme') {
@@ -419,9 +507,7 @@ function gradientNames(at: ProcessAttrs): string[] {
   return [
     'encoded',
     'edgeTerm',
-    'jm',
-    'w2m',
-    ...(at.hasMessageBias ? ['b2m'] : []),
+    ...(at.message === 'mlp' ? ['jm', 'w2m', ...(at.hasMessageBias ? ['b2m'] : [])] : ['ws']),
     'ju',
     ...(at.hasUpdateBias ? ['bu'] : []),
     'w2u',
@@ -440,7 +526,8 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
   const E = t['src']!.shape[0]!;
   const T = at.steps;
   const kind = kindOf(at.aggregator);
-  const layout = stepLayout(N, E, H, kind);
+  const message = messageKindOf(at.message);
+  const layout = stepLayout(N, E, H, kind, message);
   const NH = N * H;
   const EH = E * H;
   const HH = H * H;
@@ -450,6 +537,7 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     edgeTerm: [E, H],
     jm: [H, 2 * H],
     w2m: [H, H],
+    ws: [H, H],
     b2m: [H],
     ju: [3 * H, H],
     bu: [H],
@@ -476,6 +564,8 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
     gJu: 3 * HH,
     gW2m: HH,
     gJm: 2 * HH,
+    gWs: HH,
+    ...(message !== 'mlp' ? { wp: H * padded(H), dyp: N * padded(H), dwp: H * padded(H), stmp: (H + 2) * padded(H) } : {}),
     gB: H,
     w2uT: HH,
     juT: 3 * HH,
@@ -499,8 +589,13 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
   // The stock path transposes each weight before every A·Bᵀ; the weights do not change during a step.
   transpose(F, fi(s['w2uT']!), fi(ptr('w2u')), H, H);
   transpose(F, fi(s['juT']!), fi(ptr('ju')), 3 * H, H);
-  transpose(F, fi(s['w2mT']!), fi(ptr('w2m')), H, H);
-  transpose(F, fi(s['jmT']!), fi(ptr('jm')), H, 2 * H);
+  if (message === 'mlp') {
+    transpose(F, fi(s['w2mT']!), fi(ptr('w2m')), H, H);
+    transpose(F, fi(s['jmT']!), fi(ptr('jm')), H, 2 * H);
+  }
+  const semiringScale = Math.fround(at.message === 'smooth-min-plus' ? -at.messageTemperature : at.messageTemperature);
+  const Hp = padded(H);
+  if (message !== 'mlp') padWeight(raw, F, ptr('ws'), s['wp']!, H);
   copy(F, fi(s['G']!), fi(ptr('dy')), NH);
 
   /**
@@ -613,25 +708,37 @@ function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown;
       }
       raw.gatherRows(s['da']!, dst, s['dm']!, E, H);
     }
-    // message second layer: m = act(pre)·W₂ (+ b₂)
-    product(second.dA, s['dm']!, H, 1, s['w2mT']!, s['dAct']!, H, E, H);
-    g = into('w2m', s['gW2m']!);
-    product(second.dB, p('act'), 1, H, s['dm']!, g, E, H, H);
-    settle('w2m', g, HH);
-    if (at.hasMessageBias) {
-      g = into('b2m', s['gB']!);
-      raw.colSum(s['dm']!, g, E, H);
-      settle('b2m', g, H);
+    if (message !== 'mlp') {
+      // semiring layer: m = gather(y, src) + edge term; y's gradient is the gather's (a segment sum by sender)
+      add('edgeTerm', s['dm']!, EH);
+      raw.segmentSum(s['dm']!, src, s['dP']!, E, H, N);
+      raw.copyBlock(s['dP']!, s['dyp']!, N, H, H, Hp);
+      if (message === 'hard') raw.semiringHardGrad(p('h'), s['wp']!, p('sy'), s['dyp']!, s['dhp']!, s['dwp']!, s['stmp']!, N, H, Hp);
+      else raw.semiringSmoothGrad(p('h'), s['wp']!, p('sy'), p('sb'), p('sc'), s['dyp']!, s['dhp']!, s['dwp']!, s['stmp']!, N, H, Hp, semiringScale);
+      g = into('ws', s['gWs']!);
+      raw.copyBlock(s['dwp']!, g, H, H, Hp, H);
+      settle('ws', g, HH);
+    } else {
+      // message second layer: m = act(pre)·W₂ (+ b₂)
+      product(second.dA, s['dm']!, H, 1, s['w2mT']!, s['dAct']!, H, E, H);
+      g = into('w2m', s['gW2m']!);
+      product(second.dB, p('act'), 1, H, s['dm']!, g, E, H, H);
+      settle('w2m', g, HH);
+      if (at.hasMessageBias) {
+        g = into('b2m', s['gB']!);
+        raw.colSum(s['dm']!, g, E, H);
+        settle('b2m', g, H);
+      }
+      if (at.activation === 'relu') raw.reluGrad(s['dAct']!, p('pre'), s['dPre']!, EH);
+      else raw.leakyGrad(s['dAct']!, p('pre'), s['dPre']!, EH, LEAKY);
+      // first layer: pre = P[src, :H] + P[dst, H:] + edge term, P = h·[W_s | W_d]
+      raw.scatterPair(s['dPre']!, src, dst, s['dP']!, N, E, H);
+      add('edgeTerm', s['dPre']!, EH);
+      product(first.dA, s['dP']!, 2 * H, 1, s['jmT']!, s['dhp']!, 2 * H, N, H);
+      g = into('jm', s['gJm']!);
+      product(first.dB, p('h'), 1, H, s['dP']!, g, N, H, 2 * H);
+      settle('jm', g, 2 * HH);
     }
-    if (at.activation === 'relu') raw.reluGrad(s['dAct']!, p('pre'), s['dPre']!, EH);
-    else raw.leakyGrad(s['dAct']!, p('pre'), s['dPre']!, EH, LEAKY);
-    // first layer: pre = P[src, :H] + P[dst, H:] + edge term, P = h·[W_s | W_d]
-    raw.scatterPair(s['dPre']!, src, dst, s['dP']!, N, E, H);
-    add('edgeTerm', s['dPre']!, EH);
-    product(first.dA, s['dP']!, 2 * H, 1, s['jmT']!, s['dhp']!, 2 * H, N, H);
-    g = into('jm', s['gJm']!);
-    product(first.dB, p('h'), 1, H, s['dP']!, g, N, H, 2 * H);
-    settle('jm', g, 2 * HH);
     // hᵗ's own uses, in the tape's order: the residual, then the concat, then the first layer
     if (step > 0) {
       add('encoded', s['dencc']!, NH);
@@ -678,10 +785,12 @@ export interface ProcessInputs {
   edgeTerm: tf.Tensor2D;
   src: tf.Tensor1D;
   dst: tf.Tensor1D;
-  /** [W_s | W_d], [H, 2H] */
-  jm: tf.Tensor2D;
-  w2m: tf.Tensor2D;
+  /** The mlp message: [W_s | W_d], [H, 2H], its second layer and bias. */
+  jm?: tf.Tensor2D;
+  w2m?: tf.Tensor2D;
   b2m?: tf.Tensor;
+  /** A semiring message layer's weight W, [H, H]. */
+  ws?: tf.Tensor2D;
   /** [W_h; W_a; W_x], [3H, H] */
   ju: tf.Tensor2D;
   bu?: tf.Tensor;
@@ -695,6 +804,8 @@ export interface ProcessInputs {
  */
 export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 'record' | 'hasMessageBias' | 'hasUpdateBias' | 'hasOutputBias'>): tf.Tensor2D {
   registerProcessKernels();
+  const weights = options.message === 'mlp' ? [inputs.jm, inputs.w2m] : [inputs.ws];
+  if (weights.some((w) => w == null)) throw new Error(`engine/process: the ${options.message} message needs its weights`);
   const attrs: ProcessAttrs = {
     ...options,
     record: false,
@@ -709,11 +820,12 @@ export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 
       edgeTerm: inputs.edgeTerm,
       src: inputs.src,
       dst: inputs.dst,
-      jm: inputs.jm,
-      w2m: inputs.w2m,
       ju: inputs.ju,
       w2u: inputs.w2u,
     };
+    if (inputs.jm) map['jm'] = inputs.jm;
+    if (inputs.w2m) map['w2m'] = inputs.w2m;
+    if (inputs.ws) map['ws'] = inputs.ws;
     if (inputs.b2m) map['b2m'] = inputs.b2m;
     if (inputs.bu) map['bu'] = inputs.bu;
     if (inputs.b2u) map['b2u'] = inputs.b2u;
@@ -729,14 +841,17 @@ export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 
   const node = tf.customGrad((...args: (tf.Tensor | tf.GradSaveFunc)[]) => {
     const save = args[args.length - 1] as tf.GradSaveFunc;
     const [hT, stash] = engine.runKernel(PROCESS_KERNELS.forward, kernelInputs(), recordAttrs) as tf.Tensor[];
-    save([stash!, inputs.src, inputs.dst, inputs.jm, inputs.w2m, inputs.ju, inputs.w2u]);
+    // The message weights last: the mlp's two, or the semiring layer's one.
+    save([stash!, inputs.src, inputs.dst, inputs.ju, inputs.w2u, ...(weights as tf.Tensor[])]);
     return {
       value: hT!,
       gradFunc: (dy: tf.Tensor | tf.Tensor[], saved: tf.Tensor[]) => {
-        const [kept, src, dst, jm, w2m, ju, w2u] = saved;
+        const [kept, src, dst, ju, w2u, ...messageWeights] = saved;
+        const named: tf.NamedTensorMap =
+          options.message === 'mlp' ? { jm: messageWeights[0]!, w2m: messageWeights[1]! } : { ws: messageWeights[0]! };
         return engine.runKernel(
           PROCESS_KERNELS.backward,
-          { dy: dy as tf.Tensor, stash: kept!, src: src!, dst: dst!, jm: jm!, w2m: w2m!, ju: ju!, w2u: w2u! },
+          { dy: dy as tf.Tensor, stash: kept!, src: src!, dst: dst!, ju: ju!, w2u: w2u!, ...named },
           recordAttrs,
         ) as tf.Tensor[];
       },

@@ -9,11 +9,18 @@
 import * as tf from '@tensorflow/tfjs-core';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
 import type { ModelOptions } from './options.ts';
-import { fusedProcessEnabled, processSteps, type ProcessAggregator, type ProcessInputs } from '../engine/kernels-process.ts';
+import { fusedProcessEnabled, processSteps, type ProcessAggregator, type ProcessInputs, type ProcessMessage } from '../engine/kernels-process.ts';
 import { isWasmMatMulPatched } from '../engine/kernels-matmul.ts';
 import { simdKernels } from '../engine/simd/simd-kernels.ts';
 
 const FUSED_AGGREGATORS: ReadonlySet<string> = new Set<ProcessAggregator>(['sum', 'mean', 'max', 'min', 'smooth-max', 'smooth-min']);
+/**
+ * The kernels also run the semiring message layers bit for bit (test/engine/process-kernel.test.ts,
+ * through `processSteps`), but the network's fused forward still builds the mlp's inputs (it asks for
+ * `message.w2`); once it passes the semiring weight as `ws`, add 'min-plus', 'max-plus',
+ * 'smooth-min-plus' and 'smooth-max-plus' here.
+ */
+const FUSED_MESSAGES: ReadonlySet<string> = new Set<ProcessMessage>(['mlp']);
 
 export interface ProcessWatchers {
   trace?: boolean;
@@ -22,7 +29,7 @@ export interface ProcessWatchers {
 }
 
 export function fusedProcessApplies(options: ModelOptions, watchers: ProcessWatchers, nodes: number, edges: number, steps: number): boolean {
-  if (!fusedProcessEnabled() || options.message !== 'mlp' || options.update !== 'mlp') return false;
+  if (!fusedProcessEnabled() || !FUSED_MESSAGES.has(options.message) || options.update !== 'mlp') return false;
   if (!FUSED_AGGREGATORS.has(options.aggregator)) return false;
   if (options.activation !== 'relu' && options.activation !== 'leaky-relu') return false;
   if (watchers.trace || watchers.stopTolerance !== undefined || watchers.onStep !== undefined) return false;
@@ -35,6 +42,8 @@ export function fusedProcessApplies(options: ModelOptions, watchers: ProcessWatc
 export function runFusedProcess(options: ModelOptions, inputs: ProcessInputs, steps: number): tf.Tensor2D {
   return processSteps(inputs, {
     steps,
+    message: options.message,
+    messageTemperature: options.messageTemperature,
     aggregator: options.aggregator as ProcessAggregator,
     temperature: options.aggregatorTemperature,
     activation: options.activation as 'relu' | 'leaky-relu',

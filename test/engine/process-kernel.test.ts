@@ -11,7 +11,7 @@ import { afterEach, beforeAll, describe, expect, it } from 'vitest';
 import * as tf from '@tensorflow/tfjs-core';
 import { initBackend } from '../../src/engine/backend.ts';
 import type { BackendWasm } from '@tensorflow/tfjs-backend-wasm';
-import { backendUnary, setFusedProcessEnabled } from '../../src/engine/kernels-process.ts';
+import { backendUnary, processSteps, setFusedProcessEnabled, type ProcessMessage } from '../../src/engine/kernels-process.ts';
 import { modelSchema } from '../../src/experiment/spec.ts';
 import { MessagePassingNetwork, type NetworkInputs } from '../../src/model/network.ts';
 import { fusedProcessApplies } from '../../src/model/fused-process.ts';
@@ -98,6 +98,112 @@ function compareWays(model: Record<string, unknown>, data: TaskInstance[], steps
     network.dispose();
   }
 }
+
+/**
+ * The semiring message layers through the fused kernels, composed here as the network's fused forward
+ * would (encode, edge term, the kernels, decode), against the network's stock forward: the network
+ * does not route these kinds to the kernels yet (src/model/fused-process.ts, FUSED_MESSAGES).
+ */
+function semiringForward(network: MessagePassingNetwork, batch: BatchTensors, steps: number): tf.Tensor2D {
+  const p = network.params;
+  const o = network.options;
+  const optional = (name: string) => (p.has(name) ? p.get(name) : undefined);
+  const h = processSteps(
+    {
+      encoded: network.encode(batch.nodeX),
+      edgeTerm: network.edgeTerm(batch.edgeX),
+      src: batch.src,
+      dst: batch.dst,
+      ws: p.get('message.semiring') as tf.Tensor2D,
+      ju: tf.concat([p.get('update.wh'), p.get('update.wa'), p.get('update.wx')], 0) as tf.Tensor2D,
+      bu: optional('update.b'),
+      w2u: p.get('update.w2') as tf.Tensor2D,
+      b2u: optional('update.b2'),
+    },
+    {
+      steps,
+      message: o.message as ProcessMessage,
+      messageTemperature: o.messageTemperature,
+      aggregator: o.aggregator as 'sum',
+      temperature: o.aggregatorTemperature,
+      activation: o.activation as 'relu',
+    },
+  );
+  return network.decode(h);
+}
+
+/**
+ * `weights`: 'fresh' (the update output layer is zero, so only the update layers get a gradient),
+ * 'moved' (every weight moved by a seeded amount), or 'tied' (moved, then every encoder column and
+ * every semiring weight made equal, so the first step's sums tie across all k).
+ */
+function compareSemiring(model: Record<string, unknown>, data: TaskInstance[], steps: number, weights: 'fresh' | 'moved' | 'tied' = 'moved'): void {
+  const options = modelSchema.parse({ hidden: 32, ...model, steps: { rule: 'fixed', count: steps, trainJitter: 0 } });
+  const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(11));
+  if (weights !== 'fresh') {
+    const rng = new Rng(41);
+    const H = options.hidden;
+    const moved = new Map([...network.params.snapshot()].map(([name, w]) => [name, Float32Array.from(w, (v) => v + rng.uniform(-0.3, 0.3))]));
+    if (weights === 'tied') {
+      moved.set('message.semiring', moved.get('message.semiring')!.fill(0.25));
+      const encode = moved.get('encode.w')!;
+      for (let i = 0; i < encode.length; i++) encode[i] = encode[i - (i % H)]!;
+      moved.get('encode.b')?.fill(0.5);
+    }
+    network.params.restore(moved);
+  }
+  const batch = uploadBatch(makeBatch(data, TRANSFORMS));
+  const vars = [...network.params.vars.values()];
+  const run = (forward: () => tf.Tensor2D): Outcome =>
+    tf.tidy(() => {
+      const { value, grads } = tf.variableGrads(() => maskedLoss(forward(), batch.target, batch.mask, 'huber'), vars);
+      return {
+        loss: value.dataSync()[0]!,
+        grads: Object.fromEntries(Object.entries(grads).map(([name, g]) => [name, g.dataSync() as Float32Array])),
+        evaluated: (forward().dataSync() as Float32Array).slice(),
+      };
+    });
+  try {
+    setFusedProcessEnabled(false);
+    const stock = run(() => network.forward(batch, { steps }).prediction);
+    const fused = run(() => semiringForward(network, batch, steps));
+    expect(differing(fused.evaluated, stock.evaluated)).toBe(0);
+    expect(Object.is(fused.loss, stock.loss)).toBe(true);
+    expect(Object.keys(fused.grads).sort()).toEqual(Object.keys(stock.grads).sort());
+    for (const name of Object.keys(stock.grads)) expect([name, differing(fused.grads[name]!, stock.grads[name]!)]).toEqual([name, 0]);
+  } finally {
+    setFusedProcessEnabled(true);
+    batch.dispose();
+    network.dispose();
+  }
+}
+
+describe('fused semiring message layers give the stock composition’s bits', () => {
+  const er = instances('er', 16, [1, 10]);
+  const small = instances('er', 8, [1, 10], 29);
+  const ties = instances('er', 12, [3, 3], 5);
+  const dags = instances('dag', 12, [1, 10], 7);
+  for (const message of ['min-plus', 'max-plus', 'smooth-min-plus', 'smooth-max-plus']) {
+    for (const aggregator of ['min', 'max', 'sum', 'mean', 'smooth-min', 'smooth-max']) {
+      it(`${message} with ${aggregator}: relu and leaky relu, with biases and bias-free, fresh and moved weights`, () => {
+        compareSemiring({ message, aggregator, messageTemperature: 0.3 }, er, 6);
+        compareSemiring({ message, aggregator, messageTemperature: 1, activation: 'leaky-relu', bias: false }, er, 5);
+        compareSemiring({ message, aggregator, messageTemperature: 0.3, aggregatorTemperature: 0.5 }, er, 4, 'fresh');
+      });
+    }
+    it(`${message}: temperatures, small and odd widths, ties, DAGs (nodes without incoming edges)`, () => {
+      compareSemiring({ message, aggregator: 'min', messageTemperature: 0.05, hidden: 16 }, small, 10);
+      compareSemiring({ message, aggregator: 'sum', messageTemperature: 3, hidden: 8, activation: 'leaky-relu', bias: false }, small, 3);
+      compareSemiring({ message, aggregator: 'max', messageTemperature: 0.37, hidden: 7 }, small, 4);
+      compareSemiring({ message, aggregator: 'smooth-min', messageTemperature: 0.7, hidden: 10, activation: 'leaky-relu' }, small, 4);
+      compareSemiring({ message, aggregator: 'min', messageTemperature: 0.3 }, ties, 6);
+      compareSemiring({ message, aggregator: 'min', messageTemperature: 0.3 }, ties, 3, 'tied');
+      compareSemiring({ message, aggregator: 'mean', messageTemperature: 1, activation: 'leaky-relu', bias: false }, er, 3, 'tied');
+      compareSemiring({ message, aggregator: 'min', messageTemperature: 0.3 }, dags, 1);
+      compareSemiring({ message, aggregator: 'smooth-max', messageTemperature: 1, bias: false }, dags, 20);
+    });
+  }
+});
 
 describe('fused process kernels give the stock composition’s bits', () => {
   const er = instances('er', 16, [1, 10]);

@@ -19,6 +19,9 @@
 ;;                the backend's Sum after it transposes the reduced axes inward.
 ;;   neg, shift_div, mul_div_neg   the smooth aggregators' elementwise steps, one
 ;;                float32 operation each (Neg, Sub then RealDiv, Mul then RealDiv).
+;;   semiring_hard, semiring_shift, semiring_totals, semiring_hard_grad, semiring_smooth_grad
+;;                the semiring message layers' [N, H, H] steps and their gradients, each
+;;                element the stock composition's float32 operations in its order.
 ;; Pointers are byte offsets into the shared memory; sizes are element counts.
 (module
   (import "env" "memory" (memory 1))
@@ -762,4 +765,196 @@
       (local.set $out (i32.add (local.get $out) (local.get $rowBytes)))
       (local.set $ids (i32.add (local.get $ids) (i32.const 4)))
       (local.set $e (i32.add (local.get $e) (i32.const 1))) (br $l))))
+
+  ;; ---- semiring message layers (kernels-process.ts) ----------------------------------------
+  ;; Every [., Hp] block below is padded to Hp = H rounded up to 4 columns, so each row is whole
+  ;; vectors; padding lanes carry values nobody reads (each lane is its own float32 sequence).
+  ;; h is [N, H], w is W padded to [H, Hp]. The comparisons keep the first of equal values, as the
+  ;; stock reductions do (a later v replaces the best only when v < best, or v > best).
+
+  ;; y[n, j] = min_k or max_k (h[n, k] + W[k, j]); y is [N, Hp].
+  (func (export "semiring_hard") (param $h i32) (param $w i32) (param $y i32) (param $N i32) (param $H i32) (param $Hp i32) (param $isMin i32)
+    (local $n i32) (local $j i32) (local $k i32) (local $hr i32) (local $best v128) (local $v v128) (local $rowB i32)
+    (local.set $rowB (i32.shl (local.get $Hp) (i32.const 2)))
+    (block $nd (loop $nl
+      (br_if $nd (i32.ge_u (local.get $n) (local.get $N)))
+      (local.set $hr (i32.add (local.get $h) (i32.shl (i32.mul (local.get $n) (local.get $H)) (i32.const 2))))
+      (local.set $j (i32.const 0))
+      (block $jd (loop $jl
+        (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
+        (local.set $best (f32x4.add (f32x4.splat (f32.load (local.get $hr))) (v128.load (i32.add (local.get $w) (i32.shl (local.get $j) (i32.const 2))))))
+        (local.set $k (i32.const 1))
+        (block $kd (loop $kl
+          (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
+          (local.set $v (f32x4.add
+            (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2)))))
+            (v128.load (i32.add (local.get $w) (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2)))))))
+          (local.set $best (v128.bitselect (local.get $v) (local.get $best)
+            (if (result v128) (local.get $isMin) (then (f32x4.lt (local.get $v) (local.get $best))) (else (f32x4.gt (local.get $v) (local.get $best))))))
+          (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl)))
+        (v128.store (i32.add (local.get $y) (i32.shl (i32.add (i32.mul (local.get $n) (local.get $Hp)) (local.get $j)) (i32.const 2))) (local.get $best))
+        (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl)))
+      (local.set $n (i32.add (local.get $n) (i32.const 1))) (br $nl))))
+
+  ;; Smooth layers before exp: q = (h[n, k] + W[k, j]) / d, peak[n, j] = max_k q ([N, Hp]),
+  ;; out[n, k, j] = q − peak ([N, H, Hp]).
+  (func (export "semiring_shift") (param $h i32) (param $w i32) (param $peak i32) (param $out i32) (param $N i32) (param $H i32) (param $Hp i32) (param $d f32)
+    (local $n i32) (local $j i32) (local $k i32) (local $hr i32) (local $o i32) (local $best v128) (local $v v128) (local $dv v128) (local $rowB i32) (local $hk v128) (local $p i32)
+    (local.set $rowB (i32.shl (local.get $Hp) (i32.const 2)))
+    (local.set $dv (f32x4.splat (local.get $d)))
+    (block $nd (loop $nl
+      (br_if $nd (i32.ge_u (local.get $n) (local.get $N)))
+      (local.set $hr (i32.add (local.get $h) (i32.shl (i32.mul (local.get $n) (local.get $H)) (i32.const 2))))
+      (local.set $o (i32.add (local.get $out) (i32.mul (i32.mul (local.get $n) (local.get $H)) (local.get $rowB))))
+      (local.set $k (i32.const 0))
+      (block $kd (loop $kl
+        (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
+        (local.set $hk (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))))
+        (local.set $j (i32.const 0))
+        (block $jd (loop $jl
+          (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
+          (local.set $p (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2))))
+          (v128.store (i32.add (local.get $o) (local.get $p))
+            (f32x4.div (f32x4.add (local.get $hk) (v128.load (i32.add (local.get $w) (local.get $p)))) (local.get $dv)))
+          (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl)))
+        (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl)))
+      (local.set $j (i32.const 0))
+      (block $jd2 (loop $jl2
+        (br_if $jd2 (i32.ge_u (local.get $j) (local.get $Hp)))
+        (local.set $best (v128.load (i32.add (local.get $o) (i32.shl (local.get $j) (i32.const 2)))))
+        (local.set $k (i32.const 1))
+        (block $kd2 (loop $kl2
+          (br_if $kd2 (i32.ge_u (local.get $k) (local.get $H)))
+          (local.set $v (v128.load (i32.add (local.get $o) (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2))))))
+          (local.set $best (v128.bitselect (local.get $v) (local.get $best) (f32x4.gt (local.get $v) (local.get $best))))
+          (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl2)))
+        (v128.store (i32.add (local.get $peak) (i32.shl (i32.add (i32.mul (local.get $n) (local.get $Hp)) (local.get $j)) (i32.const 2))) (local.get $best))
+        (local.set $k (i32.const 0))
+        (block $kd3 (loop $kl3
+          (br_if $kd3 (i32.ge_u (local.get $k) (local.get $H)))
+          (local.set $p (i32.add (local.get $o) (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2)))))
+          (v128.store (local.get $p) (f32x4.sub (v128.load (local.get $p)) (local.get $best)))
+          (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl3)))
+        (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl2)))
+      (local.set $n (i32.add (local.get $n) (i32.const 1))) (br $nl))))
+
+  ;; Smooth layers between exp and log: c[n, j] = Σ_k b[n, k, j], from 0 in k order.
+  (func (export "semiring_totals") (param $b i32) (param $c i32) (param $N i32) (param $H i32) (param $Hp i32)
+    (local $n i32) (local $j i32) (local $k i32) (local $bn i32) (local $t v128) (local $rowB i32)
+    (local.set $rowB (i32.shl (local.get $Hp) (i32.const 2)))
+    (block $nd (loop $nl
+      (br_if $nd (i32.ge_u (local.get $n) (local.get $N)))
+      (local.set $bn (i32.add (local.get $b) (i32.mul (i32.mul (local.get $n) (local.get $H)) (local.get $rowB))))
+      (local.set $j (i32.const 0))
+      (block $jd (loop $jl
+        (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
+        (local.set $t (v128.const i32x4 0 0 0 0))
+        (local.set $k (i32.const 0))
+        (block $kd (loop $kl
+          (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
+          (local.set $t (f32x4.add (local.get $t) (v128.load (i32.add (local.get $bn) (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2)))))))
+          (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl)))
+        (v128.store (i32.add (local.get $c) (i32.shl (i32.add (i32.mul (local.get $n) (local.get $Hp)) (local.get $j)) (i32.const 2))) (local.get $t))
+        (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl)))
+      (local.set $n (i32.add (local.get $n) (i32.const 1))) (br $nl))))
+
+  ;; dh[n, k] = Σ_j ds[k, j] over the H real columns, from 0 in j order (ds is [H, Hp]).
+  (func $row_sums (param $ds i32) (param $dh i32) (param $H i32) (param $Hp i32)
+    (local $k i32) (local $j i32) (local $t f32) (local $r i32)
+    (block $kd (loop $kl
+      (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
+      (local.set $r (i32.add (local.get $ds) (i32.shl (i32.mul (local.get $k) (local.get $Hp)) (i32.const 2))))
+      (local.set $t (f32.const 0))
+      (local.set $j (i32.const 0))
+      (block $jd (loop $jl
+        (br_if $jd (i32.ge_u (local.get $j) (local.get $H)))
+        (local.set $t (f32.add (local.get $t) (f32.load (i32.add (local.get $r) (i32.shl (local.get $j) (i32.const 2))))))
+        (local.set $j (i32.add (local.get $j) (i32.const 1))) (br $jl)))
+      (f32.store (i32.add (local.get $dh) (i32.shl (local.get $k) (i32.const 2))) (local.get $t))
+      (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl))))
+
+  ;; Hard layers' gradient: ds[n, k, j] = dy[n, j] · (h[n, k] + W[k, j] == y[n, j]) (tfjs sends dy to
+  ;; every tied k); dh[n, k] = Σ_j ds (from 0, j order; dh is [N, H]); dw[k, j] = Σ_n ds (from 0, n order;
+  ;; [H, Hp]). dy and y are [N, Hp]; ds is scratch [H, Hp].
+  (func (export "semiring_hard_grad") (param $h i32) (param $w i32) (param $y i32) (param $dy i32) (param $dh i32) (param $dw i32) (param $ds i32) (param $N i32) (param $H i32) (param $Hp i32)
+    (local $n i32) (local $j i32) (local $k i32) (local $hr i32) (local $hk v128) (local $p i32) (local $q i32) (local $share v128) (local $rowB i32)
+    (local.set $rowB (i32.shl (local.get $Hp) (i32.const 2)))
+    (call $zero (local.get $dw) (i32.mul (local.get $H) (local.get $Hp)))
+    (block $nd (loop $nl
+      (br_if $nd (i32.ge_u (local.get $n) (local.get $N)))
+      (local.set $hr (i32.add (local.get $h) (i32.shl (i32.mul (local.get $n) (local.get $H)) (i32.const 2))))
+      (local.set $k (i32.const 0))
+      (block $kd (loop $kl
+        (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
+        (local.set $hk (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))))
+        (local.set $j (i32.const 0))
+        (block $jd (loop $jl
+          (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
+          (local.set $p (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2))))
+          (local.set $q (i32.shl (i32.add (i32.mul (local.get $n) (local.get $Hp)) (local.get $j)) (i32.const 2)))
+          (local.set $share (f32x4.mul (v128.load (i32.add (local.get $dy) (local.get $q)))
+            (v128.bitselect (v128.const f32x4 1 1 1 1) (v128.const f32x4 0 0 0 0)
+              (f32x4.eq (f32x4.add (local.get $hk) (v128.load (i32.add (local.get $w) (local.get $p)))) (v128.load (i32.add (local.get $y) (local.get $q)))))))
+          (v128.store (i32.add (local.get $ds) (local.get $p)) (local.get $share))
+          (v128.store (i32.add (local.get $dw) (local.get $p)) (f32x4.add (v128.load (i32.add (local.get $dw) (local.get $p))) (local.get $share)))
+          (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl)))
+        (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl)))
+      (call $row_sums (local.get $ds) (i32.add (local.get $dh) (i32.shl (i32.mul (local.get $n) (local.get $H)) (i32.const 2))) (local.get $H) (local.get $Hp))
+      (local.set $n (i32.add (local.get $n) (i32.const 1))) (br $nl))))
+
+  ;; Smooth layers' gradient, in the tape's reverse order, per n and column j:
+  ;;   dRes = dy·d; dc = dRes / c; dPeak = dRes + −Σ_k (dc·b) (the final add's share, then the shift's);
+  ;;   per k: dq = dc·b + dPeak·(q == peak) (the shift's share, then max's); ds = dq / d;
+  ;; then dh and dw as the hard layers'. b is [N, H, Hp]; c, peak, dy are [N, Hp]; tmp is 2·Hp + H·Hp.
+  (func (export "semiring_smooth_grad") (param $h i32) (param $w i32) (param $peak i32) (param $b i32) (param $c i32) (param $dy i32) (param $dh i32) (param $dw i32) (param $tmp i32) (param $N i32) (param $H i32) (param $Hp i32) (param $d f32)
+    (local $n i32) (local $j i32) (local $k i32) (local $hr i32) (local $hk v128) (local $p i32) (local $q i32) (local $rowB i32) (local $bn i32)
+    (local $dv v128) (local $dRes v128) (local $dc v128) (local $s v128) (local $ds i32) (local $dPeakAt i32)
+    (local.set $rowB (i32.shl (local.get $Hp) (i32.const 2)))
+    (local.set $dv (f32x4.splat (local.get $d)))
+    (local.set $dPeakAt (i32.add (local.get $tmp) (local.get $rowB)))
+    (local.set $ds (i32.add (local.get $dPeakAt) (local.get $rowB)))
+    (call $zero (local.get $dw) (i32.mul (local.get $H) (local.get $Hp)))
+    (block $nd (loop $nl
+      (br_if $nd (i32.ge_u (local.get $n) (local.get $N)))
+      (local.set $hr (i32.add (local.get $h) (i32.shl (i32.mul (local.get $n) (local.get $H)) (i32.const 2))))
+      (local.set $bn (i32.add (local.get $b) (i32.mul (i32.mul (local.get $n) (local.get $H)) (local.get $rowB))))
+      (local.set $j (i32.const 0))
+      (block $jd (loop $jl
+        (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
+        (local.set $q (i32.shl (i32.add (i32.mul (local.get $n) (local.get $Hp)) (local.get $j)) (i32.const 2)))
+        (local.set $dRes (f32x4.mul (v128.load (i32.add (local.get $dy) (local.get $q))) (local.get $dv)))
+        (local.set $dc (f32x4.div (local.get $dRes) (v128.load (i32.add (local.get $c) (local.get $q)))))
+        (local.set $s (v128.const i32x4 0 0 0 0))
+        (local.set $k (i32.const 0))
+        (block $kd (loop $kl
+          (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
+          (local.set $s (f32x4.add (local.get $s) (f32x4.mul (local.get $dc)
+            (v128.load (i32.add (local.get $bn) (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2))))))))
+          (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl)))
+        (v128.store (i32.add (local.get $tmp) (i32.shl (local.get $j) (i32.const 2))) (local.get $dc))
+        (v128.store (i32.add (local.get $dPeakAt) (i32.shl (local.get $j) (i32.const 2))) (f32x4.add (local.get $dRes) (f32x4.neg (local.get $s))))
+        (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl)))
+      (local.set $k (i32.const 0))
+      (block $kd2 (loop $kl2
+        (br_if $kd2 (i32.ge_u (local.get $k) (local.get $H)))
+        (local.set $hk (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))))
+        (local.set $j (i32.const 0))
+        (block $jd2 (loop $jl2
+          (br_if $jd2 (i32.ge_u (local.get $j) (local.get $Hp)))
+          (local.set $p (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2))))
+          (local.set $q (i32.shl (i32.add (i32.mul (local.get $n) (local.get $Hp)) (local.get $j)) (i32.const 2)))
+          (local.set $s (f32x4.div
+            (f32x4.add
+              (f32x4.mul (v128.load (i32.add (local.get $tmp) (i32.shl (local.get $j) (i32.const 2)))) (v128.load (i32.add (local.get $bn) (local.get $p))))
+              (f32x4.mul (v128.load (i32.add (local.get $dPeakAt) (i32.shl (local.get $j) (i32.const 2))))
+                (v128.bitselect (v128.const f32x4 1 1 1 1) (v128.const f32x4 0 0 0 0)
+                  (f32x4.eq (f32x4.div (f32x4.add (local.get $hk) (v128.load (i32.add (local.get $w) (local.get $p)))) (local.get $dv))
+                    (v128.load (i32.add (local.get $peak) (local.get $q)))))))
+            (local.get $dv)))
+          (v128.store (i32.add (local.get $ds) (local.get $p)) (local.get $s))
+          (v128.store (i32.add (local.get $dw) (local.get $p)) (f32x4.add (v128.load (i32.add (local.get $dw) (local.get $p))) (local.get $s)))
+          (local.set $j (i32.add (local.get $j) (i32.const 4))) (br $jl2)))
+        (local.set $k (i32.add (local.get $k) (i32.const 1))) (br $kl2)))
+      (call $row_sums (local.get $ds) (i32.add (local.get $dh) (i32.shl (i32.mul (local.get $n) (local.get $H)) (i32.const 2))) (local.get $H) (local.get $Hp))
+      (local.set $n (i32.add (local.get $n) (i32.const 1))) (br $nl))))
 )

@@ -43,6 +43,13 @@ interface Exports {
   neg(x: number, out: number, n: number): void;
   shift_div(x: number, p: number, ids: number, out: number, E: number, H: number, tau: number): void;
   mul_div_neg(a: number, b: number, out: number, negOut: number, n: number, tau: number): void;
+  semiring_hard(h: number, w: number, y: number, N: number, H: number, Hp: number, isMin: number): void;
+  semiring_shift(h: number, w: number, peak: number, out: number, N: number, H: number, Hp: number, d: number): void;
+  semiring_totals(b: number, c: number, N: number, H: number, Hp: number): void;
+  semiring_hard_grad(h: number, w: number, y: number, dy: number, dh: number, dw: number, ds: number, N: number, H: number, Hp: number): void;
+  semiring_smooth_grad(
+    h: number, w: number, peak: number, b: number, c: number, dy: number, dh: number, dw: number, tmp: number, N: number, H: number, Hp: number, d: number,
+  ): void;
   equal3(a: number, b: number, out: number, d0: number, d1: number, d2: number, as0: number, as1: number, as2: number, bs0: number, bs1: number, bs2: number): void;
 }
 
@@ -129,6 +136,12 @@ export interface RawSimd {
   shiftDiv(x: number, p: number, ids: number, out: number, E: number, H: number, tau: number): void;
   /** q = (a·b) / τ rounded after each operation; out = q, negOut = −q. */
   mulDivNeg(a: number, b: number, out: number, negOut: number, n: number, tau: number): void;
+  /** Semiring layers on [N, H] states with W padded to [H, Hp] (Hp = H rounded up to 4): see kernels.wat. */
+  semiringHard(h: number, w: number, y: number, N: number, H: number, Hp: number, isMin: boolean): void;
+  semiringShift(h: number, w: number, peak: number, out: number, N: number, H: number, Hp: number, d: number): void;
+  semiringTotals(b: number, c: number, N: number, H: number, Hp: number): void;
+  semiringHardGrad(h: number, w: number, y: number, dy: number, dh: number, dw: number, ds: number, N: number, H: number, Hp: number): void;
+  semiringSmoothGrad(h: number, w: number, peak: number, b: number, c: number, dy: number, dh: number, dw: number, tmp: number, N: number, H: number, Hp: number, d: number): void;
 }
 
 /** The Emscripten module object behind BackendWasm.wasm, as far as we use it. */
@@ -228,6 +241,11 @@ function bind(backend: BackendWasm, memory: WebAssembly.Memory, exports: Exports
     neg: (x, out, n) => exports.neg(x, out, n),
     shiftDiv: (x, p, ids, out, E, H, tau) => exports.shift_div(x, p, ids, out, E, H, tau),
     mulDivNeg: (a, b, out, negOut, n, tau) => exports.mul_div_neg(a, b, out, negOut, n, tau),
+    semiringHard: (h, w, y, N, H, Hp, isMin) => exports.semiring_hard(h, w, y, N, H, Hp, isMin ? 1 : 0),
+    semiringShift: (h, w, peak, out, N, H, Hp, d) => exports.semiring_shift(h, w, peak, out, N, H, Hp, d),
+    semiringTotals: (b, c, N, H, Hp) => exports.semiring_totals(b, c, N, H, Hp),
+    semiringHardGrad: (h, w, y, dy, dh, dw, ds, N, H, Hp) => exports.semiring_hard_grad(h, w, y, dy, dh, dw, ds, N, H, Hp),
+    semiringSmoothGrad: (h, w, peak, b, c, dy, dh, dw, tmp, N, H, Hp, d) => exports.semiring_smooth_grad(h, w, peak, b, c, dy, dh, dw, tmp, N, H, Hp, d),
   };
   return {
     raw,
