@@ -14,13 +14,7 @@ import { isWasmMatMulPatched } from '../engine/kernels-matmul.ts';
 import { simdKernels } from '../engine/simd/simd-kernels.ts';
 
 const FUSED_AGGREGATORS: ReadonlySet<string> = new Set<ProcessAggregator>(['sum', 'mean', 'max', 'min', 'smooth-max', 'smooth-min']);
-/**
- * The kernels also run the semiring message layers bit for bit (test/engine/process-kernel.test.ts,
- * through `processSteps`), but the network's fused forward still builds the mlp's inputs (it asks for
- * `message.w2`); once it passes the semiring weight as `ws`, add 'min-plus', 'max-plus',
- * 'smooth-min-plus' and 'smooth-max-plus' here.
- */
-const FUSED_MESSAGES: ReadonlySet<string> = new Set<ProcessMessage>(['mlp']);
+const FUSED_MESSAGES: ReadonlySet<string> = new Set<ProcessMessage>(['mlp', 'min-plus', 'max-plus', 'smooth-min-plus', 'smooth-max-plus']);
 
 export interface ProcessWatchers {
   trace?: boolean;

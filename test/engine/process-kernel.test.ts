@@ -202,7 +202,32 @@ describe('fused semiring message layers give the stock composition’s bits', ()
       compareSemiring({ message, aggregator: 'min', messageTemperature: 0.3 }, dags, 1);
       compareSemiring({ message, aggregator: 'smooth-max', messageTemperature: 1, bias: false }, dags, 20);
     });
+    it(`${message} through the network's own forward (fused path chosen, moved weights)`, () => {
+      compareWays({ message, aggregator: 'min', messageTemperature: 0.3 }, er, 6, true);
+      compareWays({ message, aggregator: 'smooth-max', messageTemperature: 1, activation: 'leaky-relu', bias: false }, er, 4, true);
+    });
   }
+
+  it('a smooth-min-plus training run keeps its outcome and weights and leaves no tensor behind', () => {
+    const data = instances('er', 32, [1, 10], 43);
+    const options = modelSchema.parse({ hidden: 16, message: 'smooth-min-plus', messageTemperature: 0.3, aggregator: 'min', steps: { rule: 'nodes', trainJitter: 4 } });
+    const budget = { steps: 8, batchGraphs: 16, learningRate: 0.01, clipNorm: 1, loss: 'huber', validateEvery: 4 } as const;
+    const run = (fused: boolean) => {
+      setFusedProcessEnabled(fused);
+      const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
+      const outcome = train({ network, train: data.slice(0, 24), validation: data.slice(24), transforms: TRANSFORMS, budget, rng: new Rng(4) });
+      const weights = network.params.snapshot();
+      network.dispose();
+      return { outcome, weights };
+    };
+    const before = tf.memory().numTensors;
+    const fused = run(true);
+    expect(tf.memory().numTensors).toBe(before);
+    const stock = run(false);
+    setFusedProcessEnabled(true);
+    expect(fused.outcome).toEqual(stock.outcome);
+    for (const [name, w] of stock.weights) expect([name, differing(fused.weights.get(name)!, w)]).toEqual([name, 0]);
+  });
 });
 
 describe('fused process kernels give the stock composition’s bits', () => {
