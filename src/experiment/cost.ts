@@ -3,12 +3,13 @@
  * cost model of one run, calibrated on two shipped presets timed by the bench
  * (`bench/presets.ts`) and written into their `expectation`:
  *
- *   quick-demo               20 runs, 2 workers: 26 s  → 2.6 worker-seconds per run
- *   shortest-path-max-vs-sum 20 runs, 2 workers: 208 s → 20.8 worker-seconds per run
+ *   quick-demo               20 runs, 2 workers: 8.7 s  → 0.87 worker-seconds per run
+ *   shortest-path-max-vs-sum 20 runs, 2 workers: 96.6 s → 9.66 worker-seconds per run
  *
- * Tiny networks are dominated by per-kernel overhead, so a run costs about
- * (training steps × message-passing steps per batch) kernel rounds, each a
- * fixed overhead plus a part that grows with the batch's rows × hidden width.
+ * (engine with the fused process kernels, bench of 2026-12-03). A run costs
+ * about (training steps × message-passing steps per batch) rounds of the
+ * fused kernels, each a fixed part plus a part that grows with the batch's
+ * rows × hidden width (the matmuls).
  * Scoring on the ladder is folded into the constants. The estimate is a
  * guide for the run bar ("≈ 40 s"), within a factor of two on the shipped
  * presets; the live ETA replaces it once runs finish.
@@ -16,8 +17,8 @@
 import { armModel, type ExperimentSpec } from './spec.ts';
 
 /** Milliseconds per kernel round: fixed, and per (batch row × hidden unit). */
-const ROUND_MS = 0.642;
-const ROW_UNIT_MS = 9.56e-5;
+const ROUND_MS = 0.184;
+const ROW_UNIT_MS = 6.92e-5;
 
 /** Message-passing steps a training batch gets, on average, under an arm's step rule. */
 function trainingDepth(spec: ExperimentSpec, armIndex: number): number {

@@ -13,9 +13,10 @@ const ROOT = resolve(import.meta.dirname, '../..');
 
 function measured(preset: string): { spec: ReturnType<typeof validateSpec>; seconds: number } {
   const raw = JSON.parse(readFileSync(join(ROOT, 'presets', `${preset}.json`), 'utf8')) as { expectation: string };
-  const m = /\((\d+) seeds, (\d+) s on 2/.exec(raw.expectation);
-  if (!m) throw new Error(`${preset}: no "(N seeds, T s on 2 …" in its expectation`);
-  return { spec: validateSpec(raw), seconds: Number(m[2]) };
+  // The latest timing: the bench's sentence for the current engine (fused process kernels).
+  const m = /fused process kernels \([^)]*\): (\d+) s on 2 cores/.exec(raw.expectation);
+  if (!m) throw new Error(`${preset}: no "… fused process kernels (…): T s on 2 cores" in its expectation`);
+  return { spec: validateSpec(raw), seconds: Number(m[1]) };
 }
 
 function estimate(preset: string): { predicted: number; seconds: number } {
