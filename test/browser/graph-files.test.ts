@@ -82,8 +82,9 @@ describe.skipIf(!existsSync(CHROMIUM))('graph files in the sheet (Chromium, buil
     // The file's rung (20 nodes) in the verdict table and on the figures' size axes.
     expect(await page.locator('ff-verdict-table tr[data-size="20"]').first().textContent()).toContain('ring.csv, n = 20');
     const ticks = await page.locator('ff-evidence ff-figure svg text').allTextContents();
-    // Each of the three figures labels the rung: "20depth 5" on the two size axes, "n = 20" on the per-seed panels.
-    expect(ticks.filter((t) => /^20depth /.test(t)).length).toBe(2);
+    // Each of the three figures labels the rung: the file's name over "20" and "depth 5" on the two size axes
+    // (the tick's lines read back joined), "n = 20" on the per-seed panels.
+    expect(ticks.filter((t) => /^ring\.csv20depth /.test(t)).length).toBe(2);
     expect(ticks.filter((t) => t === 'n = 20').length).toBe(1);
     expect(pageErrors).toEqual([]);
   }, 180_000);
