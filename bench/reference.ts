@@ -254,7 +254,9 @@ function matmulFlopsOf(k: { name: string; inputShapes: number[][]; outputShapes:
   return 2 * size(out) * K;
 }
 
-const isWrapper = (name: string) => name.endsWith('__op');
+// Custom-gradient nodes launch nothing themselves: ops wrapped by tfjs end in "__op"; the fused process
+// kernels' custom-gradient node (src/engine/kernels-process.ts) is recorded as "forward".
+const isWrapper = (name: string) => name.endsWith('__op') || name === 'forward';
 
 /**
  * Profile one steady-state step: profile `1 + k` steps and 1 step (each a
