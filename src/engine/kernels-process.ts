@@ -339,21 +339,24 @@ function rawOf(backend: BackendWasm): RawSimd {
 
 const floatIndex = (pointer: number) => pointer >> 2;
 
-function forwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; attrs?: tf.NamedAttrMap }): tf.TensorInfo[] {
+type KernelArgs = { inputs: tf.NamedTensorInfoMap; backend: unknown; attrs?: tf.NamedAttrMap };
+
+/** What both kernels read first: the backend, the attributes, the sizes (from the [N, H] `state` input) and the stash layout. */
+function launchContext(args: KernelArgs, state: 'encoded' | 'dy') {
   const backend = args.backend as BackendWasm; // registered for 'wasm' only
-  const raw = rawOf(backend);
-  const at = attrsOf(args.attrs);
   const t = args.inputs as Tensors;
-  const encoded = t['encoded']!;
-  const N = encoded.shape[0]!;
-  const H = encoded.shape[1]!;
+  const at = attrsOf(args.attrs);
+  const N = t[state]!.shape[0]!;
+  const H = t[state]!.shape[1]!;
   const E = t['src']!.shape[0]!;
-  const T = at.steps;
   const kind = kindOf(at.aggregator);
   const message = messageKindOf(at.message);
-  const layout = stepLayout(N, E, H, kind, message);
-  const NH = N * H;
-  const EH = E * H;
+  return { backend, raw: rawOf(backend), at, t, N, H, E, T: at.steps, kind, message, layout: stepLayout(N, E, H, kind, message), NH: N * H, EH: E * H };
+}
+
+function forwardKernel(args: KernelArgs): tf.TensorInfo[] {
+  const { backend, raw, at, t, N, H, E, T, kind, message, layout, NH, EH } = launchContext(args, 'encoded');
+  const encoded = t['encoded']!;
 
   const hOut = backend.makeOutput([N, H], 'float32');
   const stash = at.record ? backend.makeOutput([T * layout.size], 'float32') : null;
@@ -515,21 +518,8 @@ function gradientNames(at: ProcessAttrs): string[] {
   ];
 }
 
-function backwardKernel(args: { inputs: tf.NamedTensorInfoMap; backend: unknown; attrs?: tf.NamedAttrMap }): tf.TensorInfo[] {
-  const backend = args.backend as BackendWasm; // registered for 'wasm' only
-  const raw = rawOf(backend);
-  const at = attrsOf(args.attrs);
-  const t = args.inputs as Tensors;
-  const dy = t['dy']!;
-  const N = dy.shape[0]!;
-  const H = dy.shape[1]!;
-  const E = t['src']!.shape[0]!;
-  const T = at.steps;
-  const kind = kindOf(at.aggregator);
-  const message = messageKindOf(at.message);
-  const layout = stepLayout(N, E, H, kind, message);
-  const NH = N * H;
-  const EH = E * H;
+function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
+  const { backend, raw, at, t, N, H, E, T, kind, message, layout, NH, EH } = launchContext(args, 'dy');
   const HH = H * H;
 
   const shapes: Record<string, number[]> = {
