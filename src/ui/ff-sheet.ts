@@ -37,8 +37,8 @@ const NO_PROBLEMS: string[] = [];
 /** The quick demo offers the full experiment and back, by name and rough length. */
 function presetSwitch(m: SheetModel): PresetSwitch | null {
   if (m.source.kind !== 'preset' || m.edited) return null;
-  if (m.source.id === DEFAULT_PRESET) return { id: FULL_PRESET, label: 'Open the full experiment (a few minutes)' };
-  if (m.source.id === FULL_PRESET) return { id: DEFAULT_PRESET, label: 'Back to the quick demo (about half a minute)' };
+  if (m.source.id === DEFAULT_PRESET) return { id: FULL_PRESET, label: 'Open the full experiment (under two minutes)' };
+  if (m.source.id === FULL_PRESET) return { id: DEFAULT_PRESET, label: 'Back to the quick demo (about ten seconds)' };
   return null;
 }
 

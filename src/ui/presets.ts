@@ -6,7 +6,7 @@
 import type { ExperimentSpec } from '../experiment/spec.ts';
 import { parsePresetText } from '../share/preset-file.ts';
 
-/** What a first visit shows: a run short enough to watch (about half a minute). */
+/** What a first visit shows: a run short enough to watch (about ten seconds on 2 cores). */
 export const DEFAULT_PRESET = 'quick-demo';
 /** The full experiment the quick demo previews, one click away in the run bar. */
 export const FULL_PRESET = 'shortest-path-max-vs-sum';
