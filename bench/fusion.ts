@@ -16,7 +16,7 @@ import { MessagePassingNetwork } from '../src/model/network.ts';
 import { readPreset } from '../src/share/read-preset.ts';
 import { train } from '../src/train/trainer.ts';
 import { Rng } from '../src/util/rng.ts';
-import { createReferenceTrainer, profileStep, referenceInstances, type ReferenceSize, type ReferenceTrainer } from './reference.ts';
+import { createReferenceTrainer, profileStep, referenceInstances, timedTrainer, type ReferenceSize, type ReferenceTrainer } from './reference.ts';
 
 export interface FusionWorkload {
   name: 'reference' | 'default-preset';
@@ -69,25 +69,7 @@ async function presetTrainer(presetPath: string): Promise<{ trainer: ReferenceTr
     `message-passing steps: rule ${steps.rule} + 0..${steps.trainJitter}`;
   return {
     description,
-    trainer: {
-      backend: 'wasm',
-      aggregator: model.aggregator,
-      async trainFor(seconds, minSteps = 1) {
-        await initBackend('wasm');
-        const t0 = performance.now();
-        const deadline = t0 + seconds * 1000;
-        let done = 0;
-        const outcome = run(() => done++ >= minSteps && performance.now() >= deadline);
-        return { steps: outcome.stepsDone, seconds: (performance.now() - t0) / 1000, outcome };
-      },
-      trainSteps(n) {
-        let done = 0;
-        return run(() => done++ >= n);
-      },
-      async dispose() {
-        network.dispose();
-      },
-    },
+    trainer: timedTrainer('wasm', model.aggregator, run, () => network.dispose()),
   };
 }
 

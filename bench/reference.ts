@@ -167,6 +167,21 @@ export async function createReferenceTrainer(
     }
     return outcome;
   };
+  return timedTrainer(backend, aggregator, run, () => network.dispose());
+}
+
+/**
+ * A ReferenceTrainer around one `run(shouldStop)` of the real trainer: timed
+ * windows and fixed step counts both go through `shouldStop`, so what is
+ * measured is exactly a preset's per-step work (the fusion bench wraps its
+ * preset-shaped trainer the same way).
+ */
+export function timedTrainer(
+  backend: BackendName,
+  aggregator: AggregatorName,
+  run: (shouldStop: () => boolean) => TrainOutcome,
+  release: () => void,
+): ReferenceTrainer {
   return {
     backend,
     aggregator,
@@ -184,7 +199,7 @@ export async function createReferenceTrainer(
     },
     async dispose() {
       await initBackend(backend);
-      network.dispose();
+      release();
     },
   };
 }

@@ -70,6 +70,34 @@ function differing(a: ArrayLike<number>, b: ArrayLike<number>): number {
 }
 
 /**
+ * Train the same network from the same seeds on the fused path and on the stock path: the outcome
+ * (loss curve, validation curve, kept step, status) and every weight must be equal, and the fused
+ * run must leave no tensor behind.
+ */
+function expectSameTrainingRun(model: Record<string, unknown>, data: TaskInstance[], steps: number): void {
+  const options = modelSchema.parse(model);
+  const budget = { steps, batchGraphs: 16, learningRate: 0.01, clipNorm: 1, loss: 'huber', validateEvery: steps / 2 } as const;
+  const run = (fused: boolean) => {
+    setFusedProcessEnabled(fused);
+    const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
+    const outcome = train({ network, train: data.slice(0, 24), validation: data.slice(24), transforms: TRANSFORMS, budget, rng: new Rng(4) });
+    const weights = network.params.snapshot();
+    network.dispose();
+    return { outcome, weights };
+  };
+  try {
+    const before = tf.memory().numTensors;
+    const fused = run(true);
+    expect(tf.memory().numTensors).toBe(before);
+    const stock = run(false);
+    expect(fused.outcome).toEqual(stock.outcome);
+    for (const [name, w] of stock.weights) expect([name, differing(fused.weights.get(name)!, w)]).toEqual([name, 0]);
+  } finally {
+    setFusedProcessEnabled(true);
+  }
+}
+
+/**
  * A freshly built network's update output layer is zero (each step starts as the identity), so no
  * gradient reaches the aggregation or the message layers; `trained` moves every weight by a seeded
  * random amount first, as some training would, so every gradient rule is exercised.
@@ -209,24 +237,11 @@ describe('fused semiring message layers give the stock composition’s bits', ()
   }
 
   it('a smooth-min-plus training run keeps its outcome and weights and leaves no tensor behind', () => {
-    const data = instances('er', 32, [1, 10], 43);
-    const options = modelSchema.parse({ hidden: 16, message: 'smooth-min-plus', messageTemperature: 0.3, aggregator: 'min', steps: { rule: 'nodes', trainJitter: 4 } });
-    const budget = { steps: 8, batchGraphs: 16, learningRate: 0.01, clipNorm: 1, loss: 'huber', validateEvery: 4 } as const;
-    const run = (fused: boolean) => {
-      setFusedProcessEnabled(fused);
-      const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
-      const outcome = train({ network, train: data.slice(0, 24), validation: data.slice(24), transforms: TRANSFORMS, budget, rng: new Rng(4) });
-      const weights = network.params.snapshot();
-      network.dispose();
-      return { outcome, weights };
-    };
-    const before = tf.memory().numTensors;
-    const fused = run(true);
-    expect(tf.memory().numTensors).toBe(before);
-    const stock = run(false);
-    setFusedProcessEnabled(true);
-    expect(fused.outcome).toEqual(stock.outcome);
-    for (const [name, w] of stock.weights) expect([name, differing(fused.weights.get(name)!, w)]).toEqual([name, 0]);
+    expectSameTrainingRun(
+      { hidden: 16, message: 'smooth-min-plus', messageTemperature: 0.3, aggregator: 'min', steps: { rule: 'nodes', trainJitter: 4 } },
+      instances('er', 32, [1, 10], 43),
+      8,
+    );
   });
 });
 
@@ -321,23 +336,7 @@ describe('fused process kernels give the stock composition’s bits', () => {
   });
 
   it('a whole training run keeps its loss curve, kept step and weights, and leaves no tensor behind', () => {
-    const data = instances('er', 32, [1, 10], 9);
-    const options = modelSchema.parse({ hidden: 32, aggregator: 'max', steps: { rule: 'nodes', trainJitter: 6 } });
-    const budget = { steps: 12, batchGraphs: 16, learningRate: 0.01, clipNorm: 1, loss: 'huber', validateEvery: 6 } as const;
-    const run = (fused: boolean) => {
-      setFusedProcessEnabled(fused);
-      const network = new MessagePassingNetwork(options, data[0]!.nodeInputs[0]!.length, data[0]!.edgeInputs[0]!.length, new Rng(2));
-      const outcome = train({ network, train: data.slice(0, 24), validation: data.slice(24), transforms: TRANSFORMS, budget, rng: new Rng(4) });
-      const weights = network.params.snapshot();
-      network.dispose();
-      return { outcome, weights };
-    };
-    const before = tf.memory().numTensors;
-    const fused = run(true);
-    expect(tf.memory().numTensors).toBe(before);
-    const stock = run(false);
-    expect(fused.outcome).toEqual(stock.outcome);
-    for (const [name, w] of stock.weights) expect([name, differing(fused.weights.get(name)!, w)]).toEqual([name, 0]);
+    expectSameTrainingRun({ hidden: 32, aggregator: 'max', steps: { rule: 'nodes', trainJitter: 6 } }, instances('er', 32, [1, 10], 9), 12);
   });
 
   for (const aggregator of ['sum', 'smooth-max']) it(`a forward and backward pass of 10 steps (${aggregator}) launches under 150 kernels instead of about 60 more per step`, async () => {
