@@ -110,16 +110,16 @@
                 (br_if $k_done (i32.ge_u (local.get $k) (local.get $K)))
                 (local.set $b0 (v128.load (local.get $pb)))
                 (local.set $b1 (v128.load offset=16 (local.get $pb)))
-                (local.set $x (f32x4.splat (f32.load (local.get $pa))))
+                (local.set $x (v128.load32_splat (local.get $pa)))
                 (local.set $c00 (f32x4.add (local.get $c00) (f32x4.mul (local.get $x) (local.get $b0))))
                 (local.set $c01 (f32x4.add (local.get $c01) (f32x4.mul (local.get $x) (local.get $b1))))
-                (local.set $x (f32x4.splat (f32.load (local.get $pa1))))
+                (local.set $x (v128.load32_splat (local.get $pa1)))
                 (local.set $c10 (f32x4.add (local.get $c10) (f32x4.mul (local.get $x) (local.get $b0))))
                 (local.set $c11 (f32x4.add (local.get $c11) (f32x4.mul (local.get $x) (local.get $b1))))
-                (local.set $x (f32x4.splat (f32.load (local.get $pa2))))
+                (local.set $x (v128.load32_splat (local.get $pa2)))
                 (local.set $c20 (f32x4.add (local.get $c20) (f32x4.mul (local.get $x) (local.get $b0))))
                 (local.set $c21 (f32x4.add (local.get $c21) (f32x4.mul (local.get $x) (local.get $b1))))
-                (local.set $x (f32x4.splat (f32.load (local.get $pa3))))
+                (local.set $x (v128.load32_splat (local.get $pa3)))
                 (local.set $c30 (f32x4.add (local.get $c30) (f32x4.mul (local.get $x) (local.get $b0))))
                 (local.set $c31 (f32x4.add (local.get $c31) (f32x4.mul (local.get $x) (local.get $b1))))
                 (local.set $pa (i32.add (local.get $pa) (local.get $sa)))
@@ -782,12 +782,12 @@
       (local.set $j (i32.const 0))
       (block $jd (loop $jl
         (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
-        (local.set $best (f32x4.add (f32x4.splat (f32.load (local.get $hr))) (v128.load (i32.add (local.get $w) (i32.shl (local.get $j) (i32.const 2))))))
+        (local.set $best (f32x4.add (v128.load32_splat (local.get $hr)) (v128.load (i32.add (local.get $w) (i32.shl (local.get $j) (i32.const 2))))))
         (local.set $k (i32.const 1))
         (block $kd (loop $kl
           (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
           (local.set $v (f32x4.add
-            (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2)))))
+            (v128.load32_splat (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))
             (v128.load (i32.add (local.get $w) (i32.add (i32.mul (local.get $k) (local.get $rowB)) (i32.shl (local.get $j) (i32.const 2)))))))
           (local.set $best (v128.bitselect (local.get $v) (local.get $best)
             (if (result v128) (local.get $isMin) (then (f32x4.lt (local.get $v) (local.get $best))) (else (f32x4.gt (local.get $v) (local.get $best))))))
@@ -809,7 +809,7 @@
       (local.set $k (i32.const 0))
       (block $kd (loop $kl
         (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
-        (local.set $hk (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))))
+        (local.set $hk (v128.load32_splat (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2)))))
         (local.set $j (i32.const 0))
         (block $jd (loop $jl
           (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
@@ -886,7 +886,7 @@
       (local.set $k (i32.const 0))
       (block $kd (loop $kl
         (br_if $kd (i32.ge_u (local.get $k) (local.get $H)))
-        (local.set $hk (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))))
+        (local.set $hk (v128.load32_splat (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2)))))
         (local.set $j (i32.const 0))
         (block $jd (loop $jl
           (br_if $jd (i32.ge_u (local.get $j) (local.get $Hp)))
@@ -937,7 +937,7 @@
       (local.set $k (i32.const 0))
       (block $kd2 (loop $kl2
         (br_if $kd2 (i32.ge_u (local.get $k) (local.get $H)))
-        (local.set $hk (f32x4.splat (f32.load (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2))))))
+        (local.set $hk (v128.load32_splat (i32.add (local.get $hr) (i32.shl (local.get $k) (i32.const 2)))))
         (local.set $j (i32.const 0))
         (block $jd2 (loop $jl2
           (br_if $jd2 (i32.ge_u (local.get $j) (local.get $Hp)))
