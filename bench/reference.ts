@@ -92,13 +92,14 @@ export function referenceShape(instances: readonly TaskInstance[], steps: number
  *
  *   encode        N x F_n · F_n x H     2·N·F_n·H
  *   edge term     E x F_e · F_e x H     2·E·F_e·H
+ *   input term    N x H · H x H         2·N·H²      (x̂·W_x, once per forward pass)
  *   per step  t:  h·[W_s|W_d]           N x H · H x 2H     4·N·H²
  *                 message.w2            E x H · H x H      2·E·H²
- *                 update [h,a,x̂]·W      N x 3H · 3H x H    6·N·H²
+ *                 update [h,a]·W        N x 2H · 2H x H    4·N·H²
  *                 update.w2             N x H · H x H      2·N·H²
  *   decode        N x H · H x 1         2·N·H
  *
- *   forward  F = 2·N·F_n·H + 2·E·F_e·H + T·(12·N·H² + 2·E·H²) + 2·N·H
+ *   forward  F = 2·N·F_n·H + 2·E·F_e·H + 2·N·H² + T·(10·N·H² + 2·E·H²) + 2·N·H
  *   training step = F + 2·F = 3·F
  *
  * Elementwise work (activations, gathers, segment reductions, loss, clipping,
@@ -106,7 +107,7 @@ export function referenceShape(instances: readonly TaskInstance[], steps: number
  */
 export function referenceFlops(s: ReferenceShape): { forward: number; training: number } {
   const { nodes: N, edges: E, hidden: H, nodeFeatures: Fn, edgeFeatures: Fe, steps: T } = s;
-  const forward = 2 * N * Fn * H + 2 * E * Fe * H + T * (12 * N * H * H + 2 * E * H * H) + 2 * N * H;
+  const forward = 2 * N * Fn * H + 2 * E * Fe * H + 2 * N * H * H + T * (10 * N * H * H + 2 * E * H * H) + 2 * N * H;
   return { forward, training: 3 * forward };
 }
 
@@ -207,7 +208,7 @@ export function timedTrainer(
 /** The count in one line, for the JSON document. */
 export const FLOP_FORMULA =
   'matmul M x K by K x N = 2·M·K·N FLOPs; backward = 2 x forward (dA = dY·Bᵀ and dB = Aᵀ·dY); ' +
-  'forward = 2·N·F_n·H + 2·E·F_e·H + T·(12·N·H² + 2·E·H²) + 2·N·H; training step = 3 x forward';
+  'forward = 2·N·F_n·H + 2·E·F_e·H + 2·N·H² + T·(10·N·H² + 2·E·H²) + 2·N·H; training step = 3 x forward';
 
 export interface KernelStat {
   name: string;

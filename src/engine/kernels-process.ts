@@ -3,7 +3,7 @@
  *
  *   P = h·[W_s | W_d]              pre = P[src, :H] + P[dst, H:] + ê·W_e (+ b)
  *   m = act(pre)·W₂ (+ b₂)         a = ⊕_{e→v} m_e        (sum, mean, max, min, smooth-max, smooth-min)
- *   h ← h + (act([h, a, x̂]·W_u (+ b_u)))·W_u2 (+ b_u2)
+ *   h ← h + (act([h, a]·[W_h; W_a] + u))·W_u2 (+ b_u2)      u = x̂·W_x (+ b_u), an input
  *
  * — or, with a semiring message layer, m = (h ⊗ W)[src] + ê·W_e (+ b) with
  * (h ⊗ W)_j = min_k / max_k (h_k + W_kj) or its smooth log-sum-exp version —
@@ -18,13 +18,13 @@
  * the bias or 0), the same gather/scatter/segment kernels, elementwise ops
  * with the stock kernels' exact rules (a NaN stays NaN through relu, -0 stays
  * -0 through leaky relu), and every gradient that several uses send to one
- * tensor added in the order tfjs's tape adds them: for a weight, step T's
- * share first, then T−1 …; for a state hᵗ⁻¹, the residual's, then the
- * concat's, then the first layer's. Under a gradient tape tfjs does not fuse a
- * relu into its matmul (the product, then + b, then relu); outside one it does
- * (bias first, then the product); the forward kernel follows whichever applies
- * (`record`). test/engine/process-kernel.test.ts compares every value and
- * every gradient with `Object.is` against the stock path.
+ * tensor added in the order tfjs's tape adds them: for a weight (and the
+ * input term u), step T's share first, then T−1 …; for a state hᵗ⁻¹, the
+ * residual's, then the concat's, then the first layer's. u, like the edge
+ * term, is computed once per forward pass outside the kernels, and its
+ * gradient (the sum of every step's share) flows back through one product.
+ * test/engine/process-kernel.test.ts compares every value and every gradient
+ * with `Object.is` against the stock path.
  *
  * The forward kernel, when recording, also returns a stash: each step's
  * state, pre-activations, messages' activations, concat, hidden layer and
@@ -53,10 +53,9 @@ export interface ProcessAttrs {
   /** τ of the smooth aggregators (unused by the others). */
   temperature: number;
   activation: ProcessActivation;
-  /** Under a gradient tape: unfused update relu and a stash for the backward kernel. */
+  /** Under a gradient tape: keep a stash for the backward kernel. */
   record: boolean;
   hasMessageBias: boolean;
-  hasUpdateBias: boolean;
   hasOutputBias: boolean;
 }
 
@@ -130,7 +129,7 @@ function stepLayout(N: number, E: number, H: number, kind: AggregatorKind, messa
   const pre = h + NH;
   const act = pre + EH;
   const concat = act + EH;
-  const x = concat + 3 * NH;
+  const x = concat + 2 * NH;
   const hidden = x + NH;
   const arg = hidden + NH;
   const exp = arg + (kind === 'additive' ? 0 : NH);
@@ -326,7 +325,6 @@ function attrsOf(attrs: tf.NamedAttrMap | undefined): ProcessAttrs {
     activation: a.activation,
     record: a.record,
     hasMessageBias: a.hasMessageBias,
-    hasUpdateBias: a.hasUpdateBias,
     hasOutputBias: a.hasOutputBias,
   };
 }
@@ -378,7 +376,6 @@ function forwardKernel(args: KernelArgs): tf.TensorInfo[] {
   const dst = ptr('dst');
   const bias = (has: boolean, name: string) => (has ? ptr(name) : 0);
   const b2m = message === 'mlp' ? bias(at.hasMessageBias, 'b2m') : 0;
-  const bu = bias(at.hasUpdateBias, 'bu');
   const b2u = bias(at.hasOutputBias, 'b2u');
   /** The smooth semiring layers' divisor and factor, as the stock float32 scalar: τ, or −τ for smooth-min-plus. */
   const semiringScale = Math.fround(at.message === 'smooth-min-plus' ? -at.messageTemperature : at.messageTemperature);
@@ -484,20 +481,13 @@ function forwardKernel(args: KernelArgs): tf.TensorInfo[] {
         }
       }
     }
-    raw.copyBlock(h, p('concat'), N, H, H, 3 * H);
-    raw.copyBlock(s['a']!, p('concat') + 4 * H, N, H, H, 3 * H);
-    raw.copyBlock(raw.offset(encoded), p('concat') + 8 * H, N, H, H, 3 * H);
-    // update: hidden layer, output layer, residual
-    if (at.activation === 'relu' && at.record) {
-      matmul(raw, p('concat'), ptr('ju'), p('x'), 3 * H, N, H, 0, false);
-      if (bu !== 0) raw.addRow(p('x'), bu, p('x'), N, H);
-      raw.relu(p('x'), p('hidden'), NH);
-    } else if (at.activation === 'relu') {
-      matmul(raw, p('concat'), ptr('ju'), p('hidden'), 3 * H, N, H, bu, true);
-    } else {
-      matmul(raw, p('concat'), ptr('ju'), p('x'), 3 * H, N, H, bu, false);
-      raw.leakyRelu(p('x'), p('hidden'), NH, LEAKY);
-    }
+    raw.copyBlock(h, p('concat'), N, H, H, 2 * H);
+    raw.copyBlock(s['a']!, p('concat') + 4 * H, N, H, H, 2 * H);
+    // update: hidden layer (the product, + the input term, the activation), output layer, residual
+    matmul(raw, p('concat'), ptr('ju'), p('x'), 2 * H, N, H, 0, false);
+    raw.add(p('x'), ptr('inputTerm'), p('x'), NH);
+    if (at.activation === 'relu') raw.relu(p('x'), p('hidden'), NH);
+    else raw.leakyRelu(p('x'), p('hidden'), NH, LEAKY);
     matmul(raw, p('hidden'), ptr('w2u'), s['out']!, H, N, H, b2u, false);
     raw.add(h, s['out']!, h, NH);
   }
@@ -510,9 +500,9 @@ function gradientNames(at: ProcessAttrs): string[] {
   return [
     'encoded',
     'edgeTerm',
+    'inputTerm',
     ...(at.message === 'mlp' ? ['jm', 'w2m', ...(at.hasMessageBias ? ['b2m'] : [])] : ['ws']),
     'ju',
-    ...(at.hasUpdateBias ? ['bu'] : []),
     'w2u',
     ...(at.hasOutputBias ? ['b2u'] : []),
   ];
@@ -525,12 +515,12 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
   const shapes: Record<string, number[]> = {
     encoded: [N, H],
     edgeTerm: [E, H],
+    inputTerm: [N, H],
     jm: [H, 2 * H],
     w2m: [H, H],
     ws: [H, H],
     b2m: [H],
-    ju: [3 * H, H],
-    bu: [H],
+    ju: [2 * H, H],
     w2u: [H, H],
     b2u: [H],
   };
@@ -541,27 +531,26 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
     G: NH,
     dHidden: NH,
     dX: NH,
-    dConcat: 3 * NH,
+    dConcat: 2 * NH,
     dhc: NH,
     da: NH,
-    dencc: NH,
     dm: EH,
     dAct: EH,
     dPre: EH,
     dP: 2 * NH,
     dhp: NH,
     gW2u: HH,
-    gJu: 3 * HH,
+    gJu: 2 * HH,
     gW2m: HH,
     gJm: 2 * HH,
     gWs: HH,
     ...(message !== 'mlp' ? { wp: H * padded(H), dyp: N * padded(H), dwp: H * padded(H), stmp: (H + 2) * padded(H) } : {}),
     gB: H,
     w2uT: HH,
-    juT: 3 * HH,
+    juT: 2 * HH,
     w2mT: HH,
     jmT: 2 * HH,
-    block: Math.max(3 * NH, EH, 3 * HH),
+    block: Math.max(2 * NH, EH, 2 * HH),
     ...(kind === 'smooth' ? { dPeak: NH, dSafe: NH, dShare: NH, dExp: EH, dShifted: EH, dNeg: EH, dArg: EH } : {}),
   };
   const s = carve(scratch(raw, 4 * totalFloats(sizes)), sizes);
@@ -578,7 +567,7 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
   const tau = Math.fround(at.temperature);
   // The stock path transposes each weight before every A·Bᵀ; the weights do not change during a step.
   transpose(F, fi(s['w2uT']!), fi(ptr('w2u')), H, H);
-  transpose(F, fi(s['juT']!), fi(ptr('ju')), 3 * H, H);
+  transpose(F, fi(s['juT']!), fi(ptr('ju')), 2 * H, H);
   if (message === 'mlp') {
     transpose(F, fi(s['w2mT']!), fi(ptr('w2m')), H, H);
     transpose(F, fi(s['jmT']!), fi(ptr('jm')), H, 2 * H);
@@ -611,7 +600,7 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
   });
   const first = simdPaths(N, H, 2 * H);
   const second = simdPaths(E, H, H);
-  const hiddenLayer = simdPaths(N, 3 * H, H);
+  const hiddenLayer = simdPaths(N, 2 * H, H);
   const outputLayer = simdPaths(N, H, H);
 
   /** A chain of gradients for one tensor: the first share is written, later ones added. */
@@ -644,21 +633,16 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
       raw.colSum(G, g, N, H);
       settle('b2u', g, H);
     }
-    // hidden layer: hidden = act(x), x = [h, a, x̂]·W_u (+ b_u)
+    // hidden layer: hidden = act(x), x = [h, a]·[W_h; W_a] + u (the sum's gradient goes to both addends)
     if (at.activation === 'relu') raw.reluGrad(s['dHidden']!, p('x'), s['dX']!, NH);
     else raw.leakyGrad(s['dHidden']!, p('x'), s['dX']!, NH, LEAKY);
-    if (at.hasUpdateBias) {
-      g = into('bu', s['gB']!);
-      raw.colSum(s['dX']!, g, N, H);
-      settle('bu', g, H);
-    }
-    product(hiddenLayer.dA, s['dX']!, H, 1, s['juT']!, s['dConcat']!, H, N, 3 * H);
+    add('inputTerm', s['dX']!, NH);
+    product(hiddenLayer.dA, s['dX']!, H, 1, s['juT']!, s['dConcat']!, H, N, 2 * H);
     g = into('ju', s['gJu']!);
-    product(hiddenLayer.dB, p('concat'), 1, 3 * H, s['dX']!, g, N, 3 * H, H);
-    settle('ju', g, 3 * HH);
-    raw.copyBlock(s['dConcat']!, s['dhc']!, N, H, 3 * H, H);
-    raw.copyBlock(s['dConcat']! + 4 * H, s['da']!, N, H, 3 * H, H);
-    raw.copyBlock(s['dConcat']! + 8 * H, s['dencc']!, N, H, 3 * H, H);
+    product(hiddenLayer.dB, p('concat'), 1, 2 * H, s['dX']!, g, N, 2 * H, H);
+    settle('ju', g, 2 * HH);
+    raw.copyBlock(s['dConcat']!, s['dhc']!, N, H, 2 * H, H);
+    raw.copyBlock(s['dConcat']! + 4 * H, s['da']!, N, H, 2 * H, H);
     // aggregation
     const da = fi(s['da']!);
     if (kind === 'extreme') {
@@ -731,14 +715,12 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
     }
     // hᵗ's own uses, in the tape's order: the residual, then the concat, then the first layer
     if (step > 0) {
-      add('encoded', s['dencc']!, NH);
       raw.add(G, s['dhc']!, G, NH);
       raw.add(G, s['dhp']!, G, NH);
     } else {
-      // h⁰ is x̂ itself: its residual, concat (state slot, then input slot) and first-layer shares join x̂'s chain
+      // h⁰ is x̂ itself: its residual, concat and first-layer shares (tfjs then adds u's product's share)
       add('encoded', G, NH);
       add('encoded', s['dhc']!, NH);
-      add('encoded', s['dencc']!, NH);
       add('encoded', s['dhp']!, NH);
     }
   }
@@ -781,9 +763,10 @@ export interface ProcessInputs {
   b2m?: tf.Tensor;
   /** A semiring message layer's weight W, [H, H]. */
   ws?: tf.Tensor2D;
-  /** [W_h; W_a; W_x], [3H, H] */
+  /** The update's input term x̂·W_x (+ b_u), [N, H], computed once per forward pass. */
+  inputTerm: tf.Tensor2D;
+  /** [W_h; W_a], [2H, H] */
   ju: tf.Tensor2D;
-  bu?: tf.Tensor;
   w2u: tf.Tensor2D;
   b2u?: tf.Tensor;
 }
@@ -792,7 +775,7 @@ export interface ProcessInputs {
  * h after T steps, through the fused kernels. Under a gradient tape the pair
  * is one custom-gradient node whose backward is the fused backward kernel.
  */
-export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 'record' | 'hasMessageBias' | 'hasUpdateBias' | 'hasOutputBias'>): tf.Tensor2D {
+export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 'record' | 'hasMessageBias' | 'hasOutputBias'>): tf.Tensor2D {
   registerProcessKernels();
   const weights = options.message === 'mlp' ? [inputs.jm, inputs.w2m] : [inputs.ws];
   if (weights.some((w) => w == null)) throw new Error(`engine/process: the ${options.message} message needs its weights`);
@@ -800,7 +783,6 @@ export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 
     ...options,
     record: false,
     hasMessageBias: inputs.b2m != null,
-    hasUpdateBias: inputs.bu != null,
     hasOutputBias: inputs.b2u != null,
   };
   const engine = tf.engine();
@@ -808,6 +790,7 @@ export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 
     const map: tf.NamedTensorMap = {
       encoded: inputs.encoded,
       edgeTerm: inputs.edgeTerm,
+      inputTerm: inputs.inputTerm,
       src: inputs.src,
       dst: inputs.dst,
       ju: inputs.ju,
@@ -817,7 +800,6 @@ export function processSteps(inputs: ProcessInputs, options: Omit<ProcessAttrs, 
     if (inputs.w2m) map['w2m'] = inputs.w2m;
     if (inputs.ws) map['ws'] = inputs.ws;
     if (inputs.b2m) map['b2m'] = inputs.b2m;
-    if (inputs.bu) map['bu'] = inputs.bu;
     if (inputs.b2u) map['b2u'] = inputs.b2u;
     return map;
   };

@@ -12,7 +12,9 @@ import { version as packageVersion } from '../../package.json';
 /**
  * package.json's version, read at import (tsx) or build (esbuild, Vite) time. Bump it whenever
  * the same spec gives different numbers: 0.2.0 scores the fit gate on fresh graphs, keeps weights
- * by the preset's metric and gives weight-carrying tasks inputs in weight units.
+ * by the preset's metric and gives weight-carrying tasks inputs in weight units; 0.3.0 computes
+ * the mlp update's input term x̂·W_x (+ b) once per forward pass instead of inside every step's
+ * product (same mathematics, other float32 rounding).
  */
 export const ENGINE_VERSION: string = packageVersion;
 export const RESULTS_KIND = 'farfield-results';

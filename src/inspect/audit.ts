@@ -420,7 +420,7 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
       const idsB = Int32Array.from(split.reduce<number[]>((acc, s, e) => (!s ? (acc.push(e), acc) : acc), []));
       const result = tf.tidy(() => {
         const h = recorded.states[t]!;
-        const x = recorded.encoded;
+        const x = network.stepConstants(recorded.encoded);
         // Neutral message: the aggregator's neutral element for the "aggregate" update (combine must then leave h alone);
         // 0 with the real hasIncoming for MLP / gated updates (what a node without incoming messages gets every step).
         let neutralOut: tf.Tensor2D;
@@ -651,7 +651,7 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
             } else {
               a = tf.zeros([n, o.hidden]) as tf.Tensor2D;
             }
-            const updated = network.update(current, a, fixed.encoded, hasT);
+            const updated = network.update(current, a, network.stepConstants(fixed.encoded), hasT);
             const mask = tf.tensor2d(Uint8Array.from({ length: n * o.hidden }, (_, i) => selected[Math.floor(i / o.hidden)]!), [n, o.hidden], 'bool');
             return tf.where(mask, updated, current) as tf.Tensor2D;
           });

@@ -134,13 +134,13 @@ export function messageProbe(network: MessagePassingNetwork, transforms: Feature
       const agg = getAggregator(network.options.aggregator);
       const receiverStart = tf.tile(hr0, [K, 1]) as tf.Tensor2D;
       // The encoded input x̂ of each receiver is its starting encoding; the sender rows' x̂ is never read.
-      const encoded = interleave(senders, receiverStart);
+      const constants = network.stepConstants(interleave(senders, receiverStart));
       let receiver = receiverStart;
       for (let t = 0; t < deliveries; t++) {
         const h = interleave(senders, receiver);
         const m = network.message(h, edgeTerm, inputs);
         const a = agg.aggregate({ messages: m, dst, nodes: 2 * K, hasIncoming, temperature: network.options.aggregatorTemperature });
-        const next = network.update(h, a, encoded, hasIncoming);
+        const next = network.update(h, a, constants, hasIncoming);
         receiver = tf.slice(tf.reshape(next, [K, 2 * H]), [0, H], [K, H]) as tf.Tensor2D;
       }
       return { sender: network.decode(hs).dataSync()[0]!, y: Array.from(network.decode(receiver).dataSync()) };

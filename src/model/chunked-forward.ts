@@ -250,9 +250,12 @@ export function chunkedPredict(network: MessagePassingNetwork, graph: ChunkedGra
   const ranges = planRanges(graph, budget);
   const nodeX = tf.tensor2d(graph.nodeX, [graph.nodes, graph.nodeFeatures], 'float32');
   let encoded: tf.Tensor2D | null = null;
+  let inputTerm: tf.Tensor2D | null = null;
   let h: tf.Tensor2D | null = null;
   try {
     encoded = tf.tidy(() => network.encode(nodeX));
+    // Row-wise products: a chunk's rows of x̂·W_x are the rows of the whole product, bit for bit.
+    if (network.options.update === 'mlp') inputTerm = tf.tidy(() => network.stepConstants(encoded!).inputTerm!);
     h = encoded;
     for (let t = 0; t < options.steps; t++) {
       const previous: tf.Tensor2D = h;
@@ -264,8 +267,8 @@ export function chunkedPredict(network: MessagePassingNetwork, graph: ChunkedGra
             tf.tidy(() => {
               const a = aggregateRange(network, aggregator, range, previous);
               const hs = tf.slice(previous, [range.lo, 0], [size, H]) as tf.Tensor2D;
-              const xs = tf.slice(encoded!, [range.lo, 0], [size, H]) as tf.Tensor2D;
-              return network.update(hs, a, xs, range.hasIncoming);
+              const rows = (x: tf.Tensor2D) => tf.slice(x, [range.lo, 0], [size, H]) as tf.Tensor2D;
+              return network.update(hs, a, { encoded: rows(encoded!), inputTerm: inputTerm && rows(inputTerm) }, range.hasIncoming);
             }),
           );
         }
@@ -290,6 +293,7 @@ export function chunkedPredict(network: MessagePassingNetwork, graph: ChunkedGra
   } finally {
     if (h && h !== encoded) h.dispose();
     encoded?.dispose();
+    inputTerm?.dispose();
     nodeX.dispose();
     disposeRanges(ranges);
   }

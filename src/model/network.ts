@@ -12,8 +12,9 @@
  *   (the first layer is split per operand so node projections happen before the
  *   per-edge gather, which is cheaper than concatenating per edge);
  *   semiring kinds  m = gather(semiringDense(h, W), src) + W_e ê (+ b).
- * Updates: "mlp"  h + Dense₂(act(W_h h + W_a a + W_x x̂ + b)), with Dense₂ starting at
- *   zero so every step starts as the identity (keeps untrained deep unrolls stable);
+ * Updates: "mlp"  h + Dense₂(act([h, a]·[W_h; W_a] + u)), u = x̂·W_x + b computed once
+ *   per forward pass like the edge term (it does not change across steps), with Dense₂
+ *   starting at zero so every step starts as the identity (keeps untrained deep unrolls stable);
  *   "gated" a GRU cell with input [a, x̂]; "aggregate" h ⊕ a with the arm's aggregator.
  * With bias off every layer is bias-free and (with relu / leaky-relu, sum/mean/
  * max/min, hard semirings absent) the whole map is positively homogeneous.
@@ -58,6 +59,13 @@ export interface ForwardOptions {
    * scope, not released by `releaseSteps`. The callback must not dispose the state.
    */
   onStep?: (step: number, state: tf.Tensor2D) => void;
+}
+
+/** Per-node terms that do not change across message-passing steps (see `stepConstants`). */
+export interface StepConstants {
+  encoded: tf.Tensor2D;
+  /** x̂·W_x (+ b) for the mlp update; null for the others. */
+  inputTerm: tf.Tensor2D | null;
 }
 
 export interface ForwardResult {
@@ -151,7 +159,7 @@ export class MessagePassingNetwork {
     const p = this.params;
     return {
       message: this.options.message === 'mlp' ? (tf.concat([p.get('message.ws'), p.get('message.wd')], 1) as tf.Tensor2D) : null,
-      update: this.options.update === 'mlp' ? (tf.concat([p.get('update.wh'), p.get('update.wa'), p.get('update.wx')], 0) as tf.Tensor2D) : null,
+      update: this.options.update === 'mlp' ? (tf.concat([p.get('update.wh'), p.get('update.wa')], 0) as tf.Tensor2D) : null,
     };
   }
 
@@ -170,24 +178,34 @@ export class MessagePassingNetwork {
     return this.dense(edgeX, 'message.we', 'message.b');
   }
 
+  /**
+   * The node terms every step reads unchanged: x̂ and, for the mlp update, its input term
+   * u = x̂·W_x (+ b). Computing u once per forward pass (its gradient then flows back once)
+   * saves a third of the update's first-layer products at every step.
+   */
+  stepConstants(encoded: tf.Tensor2D): StepConstants {
+    return { encoded, inputTerm: this.options.update === 'mlp' ? this.dense(encoded, 'update.wx', 'update.b') : null };
+  }
+
   update(
     h: tf.Tensor2D,
     a: tf.Tensor2D,
-    encoded: tf.Tensor2D,
+    constants: StepConstants,
     hasIncoming: tf.Tensor2D,
     joinedWeight = this.joinedWeights().update,
   ): tf.Tensor2D {
     const H = this.options.hidden;
     switch (this.options.update) {
       case 'mlp': {
-        // One concat and one fused matmul: fewer, larger ops beat per-operand matmuls here
-        // (WASM's fused matmul takes only a rank-1 bias, so the input term cannot ride in as a bias).
-        const bias = this.params.has('update.b') ? this.params.get('update.b') : undefined;
-        const hidden = this.affine(tf.concat([h, a, encoded], 1) as tf.Tensor2D, joinedWeight!, bias, 'act');
-        return tf.add(h, this.dense(hidden, 'update.w2', 'update.b2')) as tf.Tensor2D;
+        // One concat and one matmul for the state and the aggregate: fewer, larger ops beat
+        // per-operand matmuls here. The input term is an [N, H] addend (WASM's fused matmul
+        // takes only a rank-1 bias), so the product, + u and the activation are three ops.
+        if (constants.inputTerm == null) throw new Error('model/network: the mlp update needs its input term (stepConstants)');
+        const pre = tf.add(tf.matMul(tf.concat([h, a], 1) as tf.Tensor2D, joinedWeight!), constants.inputTerm) as tf.Tensor2D;
+        return tf.add(h, this.dense(this.activate(pre), 'update.w2', 'update.b2')) as tf.Tensor2D;
       }
       case 'gated': {
-        const input = tf.concat([a, encoded], 1) as tf.Tensor2D;
+        const input = tf.concat([a, constants.encoded], 1) as tf.Tensor2D;
         let zr = tf.add(tf.matMul(input, this.params.get('update.wzr') as tf.Tensor2D), tf.matMul(h, this.params.get('update.uzr') as tf.Tensor2D));
         if (this.params.has('update.bzr')) zr = tf.add(zr, this.params.get('update.bzr'));
         const gates = tf.sigmoid(zr) as tf.Tensor2D;
@@ -212,6 +230,7 @@ export class MessagePassingNetwork {
     const hasIncoming = tf.minimum(counts, 1) as tf.Tensor2D;
     const encoded = this.encode(inputs.nodeX);
     const edgeTerm = this.edgeTerm(inputs.edgeX);
+    const constants = this.stepConstants(encoded);
     let h = encoded;
     const trace: tf.Tensor2D[] = [];
     let stepsRun = 0;
@@ -219,7 +238,7 @@ export class MessagePassingNetwork {
     const step = (state: tf.Tensor2D): tf.Tensor2D => {
       const m = this.message(state, edgeTerm, inputs, joined.message);
       const a = this.aggregator.aggregate({ messages: m, dst: inputs.dst, nodes: inputs.nodes, hasIncoming, temperature: this.options.aggregatorTemperature });
-      return this.update(state, a, encoded, hasIncoming, joined.update);
+      return this.update(state, a, constants, hasIncoming, joined.update);
     };
     for (let t = 0; t < options.steps; t++) {
       const previous = h;
@@ -245,9 +264,12 @@ export class MessagePassingNetwork {
     const p = this.params;
     const optional = (name: string) => (p.has(name) ? p.get(name) : undefined);
     const joined = this.joinedWeights();
+    const encoded = this.encode(inputs.nodeX);
+    const edgeTerm = this.edgeTerm(inputs.edgeX);
     const h = runFusedProcess(this.options, {
-      encoded: this.encode(inputs.nodeX),
-      edgeTerm: this.edgeTerm(inputs.edgeX),
+      encoded,
+      edgeTerm,
+      inputTerm: this.stepConstants(encoded).inputTerm!,
       src: inputs.src,
       dst: inputs.dst,
       jm: joined.message ?? undefined,
@@ -255,7 +277,6 @@ export class MessagePassingNetwork {
       b2m: optional('message.b2'),
       ws: optional('message.semiring') as tf.Tensor2D | undefined,
       ju: joined.update!,
-      bu: optional('update.b'),
       w2u: p.get('update.w2') as tf.Tensor2D,
       b2u: optional('update.b2'),
     }, steps);

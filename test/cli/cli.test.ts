@@ -72,8 +72,8 @@ describe('farfield run', () => {
   });
 
   it('pins the fixture’s fingerprint: a change to the numbers must be deliberate (and bump the engine version)', () => {
-    // Pinned from engine 0.2.0 (specHash pinned separately in test/util/spec-hash.test.ts).
-    expect(doc.fingerprint).toBe('261a01180d42');
+    // Pinned from engine 0.3.0 (0.2.0 gave 261a01180d42; specHash pinned separately in test/util/spec-hash.test.ts).
+    expect(doc.fingerprint).toBe('e7d1497b748d');
   });
 
   it('is deterministic: the same spec gives the same fingerprint, on one worker or two', () => {

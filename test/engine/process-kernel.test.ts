@@ -136,15 +136,17 @@ function semiringForward(network: MessagePassingNetwork, batch: BatchTensors, st
   const p = network.params;
   const o = network.options;
   const optional = (name: string) => (p.has(name) ? p.get(name) : undefined);
+  const encoded = network.encode(batch.nodeX);
+  const edgeTerm = network.edgeTerm(batch.edgeX);
   const h = processSteps(
     {
-      encoded: network.encode(batch.nodeX),
-      edgeTerm: network.edgeTerm(batch.edgeX),
+      encoded,
+      edgeTerm,
+      inputTerm: network.stepConstants(encoded).inputTerm!,
       src: batch.src,
       dst: batch.dst,
       ws: p.get('message.semiring') as tf.Tensor2D,
-      ju: tf.concat([p.get('update.wh'), p.get('update.wa'), p.get('update.wx')], 0) as tf.Tensor2D,
-      bu: optional('update.b'),
+      ju: tf.concat([p.get('update.wh'), p.get('update.wa')], 0) as tf.Tensor2D,
       w2u: p.get('update.w2') as tf.Tensor2D,
       b2u: optional('update.b2'),
     },
