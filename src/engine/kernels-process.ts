@@ -27,8 +27,9 @@
  * with `Object.is` against the stock path.
  *
  * The forward kernel, when recording, also returns a stash: each step's
- * state, pre-activations, messages' activations, concat, hidden layer and
- * arg-extremes, which the backward kernel reads instead of recomputing.
+ * state, messages' activations, concat, hidden layer and arg-extremes, which
+ * the backward kernel reads instead of recomputing (the activations stand in
+ * for their inputs in the activation gradients' sign tests).
  * Scratch memory is one block per backend, grown when a batch needs more and
  * reused by every later launch.
  */
@@ -88,10 +89,8 @@ const LEAKY = Math.fround(0.01);
 /** Float offsets of one step's saved values inside the stash. */
 interface StepLayout {
   h: number;
-  pre: number;
   act: number;
   concat: number;
-  x: number;
   hidden: number;
   arg: number;
   /** Smooth aggregators: exp of the shifted messages [E, H] and log's argument [N, H], which their gradients read. */
@@ -126,11 +125,9 @@ function stepLayout(N: number, E: number, H: number, kind: AggregatorKind, messa
   const NH = N * H;
   const EH = message === 'mlp' ? E * H : 0;
   const h = 0;
-  const pre = h + NH;
-  const act = pre + EH;
+  const act = h + NH;
   const concat = act + EH;
-  const x = concat + 2 * NH;
-  const hidden = x + NH;
+  const hidden = concat + 2 * NH;
   const arg = hidden + NH;
   const exp = arg + (kind === 'additive' ? 0 : NH);
   const safe = exp + (kind === 'smooth' ? E * H : 0);
@@ -138,7 +135,7 @@ function stepLayout(N: number, E: number, H: number, kind: AggregatorKind, messa
   const sy = safe + (kind === 'smooth' ? NH : 0);
   const sb = sy + (message === 'mlp' ? 0 : NHp);
   const sc = sb + (message === 'smooth' ? NHp * H : 0);
-  return { h, pre, act, concat, x, hidden, arg, exp, safe, sy, sb, sc, size: sc + (message === 'smooth' ? NHp : 0) };
+  return { h, act, concat, hidden, arg, exp, safe, sy, sb, sc, size: sc + (message === 'smooth' ? NHp : 0) };
 }
 
 // ------------------------------------------------------------ scratch ----
@@ -362,6 +359,8 @@ function forwardKernel(args: KernelArgs): tf.TensorInfo[] {
   // and is updated in place (every read of hᵗ⁻¹ comes before the residual add that overwrites it).
   const sizes = {
     P: message === 'mlp' ? 2 * NH : 0,
+    pre: message === 'mlp' ? EH : 0,
+    x: NH,
     ...(message !== 'mlp' ? { senders: NH, wp: H * padded(H) } : {}),
     ...(message === 'smooth' ? { sums: N * H * padded(H), semiringLogs: N * padded(H) } : {}),
     m: EH,
@@ -414,9 +413,9 @@ function forwardKernel(args: KernelArgs): tf.TensorInfo[] {
     if (message === 'mlp') {
       // message: first layer per operand, gathered per edge with the constant edge term
       matmul(raw, h, ptr('jm'), s['P']!, H, N, 2 * H, 0, false);
-      raw.gatherPairAdd(s['P']!, src, dst, ptr('edgeTerm'), p('pre'), E, H);
-      if (at.activation === 'relu') raw.relu(p('pre'), p('act'), EH);
-      else raw.leakyRelu(p('pre'), p('act'), EH, LEAKY);
+      raw.gatherPairAdd(s['P']!, src, dst, ptr('edgeTerm'), s['pre']!, E, H);
+      if (at.activation === 'relu') raw.relu(s['pre']!, p('act'), EH);
+      else raw.leakyRelu(s['pre']!, p('act'), EH, LEAKY);
       matmul(raw, p('act'), ptr('w2m'), s['m']!, H, E, H, b2m, false);
     } else {
       // message: the semiring layer on the nodes, gathered by sender, plus the edge term (two stock ops)
@@ -484,10 +483,10 @@ function forwardKernel(args: KernelArgs): tf.TensorInfo[] {
     raw.copyBlock(h, p('concat'), N, H, H, 2 * H);
     raw.copyBlock(s['a']!, p('concat') + 4 * H, N, H, H, 2 * H);
     // update: hidden layer (the product, + the input term, the activation), output layer, residual
-    matmul(raw, p('concat'), ptr('ju'), p('x'), 2 * H, N, H, 0, false);
-    raw.add(p('x'), ptr('inputTerm'), p('x'), NH);
-    if (at.activation === 'relu') raw.relu(p('x'), p('hidden'), NH);
-    else raw.leakyRelu(p('x'), p('hidden'), NH, LEAKY);
+    matmul(raw, p('concat'), ptr('ju'), s['x']!, 2 * H, N, H, 0, false);
+    raw.add(s['x']!, ptr('inputTerm'), s['x']!, NH);
+    if (at.activation === 'relu') raw.relu(s['x']!, p('hidden'), NH);
+    else raw.leakyRelu(s['x']!, p('hidden'), NH, LEAKY);
     matmul(raw, p('hidden'), ptr('w2u'), s['out']!, H, N, H, b2u, false);
     raw.add(h, s['out']!, h, NH);
   }
@@ -634,8 +633,11 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
       settle('b2u', g, H);
     }
     // hidden layer: hidden = act(x), x = [h, a]·[W_h; W_a] + u (the sum's gradient goes to both addends)
-    if (at.activation === 'relu') raw.reluGrad(s['dHidden']!, p('x'), s['dX']!, NH);
-    else raw.leakyGrad(s['dHidden']!, p('x'), s['dX']!, NH, LEAKY);
+    // The activation's gradient tests its input's sign and NaN-ness; its output has the same ones
+    // (relu keeps x > 0 and NaN as they are and makes the rest +0; leaky relu keeps the sign, α > 0),
+    // so the stash keeps only the activated values, and the test reads those.
+    if (at.activation === 'relu') raw.reluGrad(s['dHidden']!, p('hidden'), s['dX']!, NH);
+    else raw.leakyGrad(s['dHidden']!, p('hidden'), s['dX']!, NH, LEAKY);
     add('inputTerm', s['dX']!, NH);
     product(hiddenLayer.dA, s['dX']!, H, 1, s['juT']!, s['dConcat']!, H, N, 2 * H);
     g = into('ju', s['gJu']!);
@@ -703,8 +705,8 @@ function backwardKernel(args: KernelArgs): tf.TensorInfo[] {
         raw.colSum(s['dm']!, g, E, H);
         settle('b2m', g, H);
       }
-      if (at.activation === 'relu') raw.reluGrad(s['dAct']!, p('pre'), s['dPre']!, EH);
-      else raw.leakyGrad(s['dAct']!, p('pre'), s['dPre']!, EH, LEAKY);
+      if (at.activation === 'relu') raw.reluGrad(s['dAct']!, p('act'), s['dPre']!, EH);
+      else raw.leakyGrad(s['dAct']!, p('act'), s['dPre']!, EH, LEAKY);
       // first layer: pre = P[src, :H] + P[dst, H:] + edge term, P = h·[W_s | W_d]
       raw.scatterPair(s['dPre']!, src, dst, s['dP']!, N, E, H);
       add('edgeTerm', s['dPre']!, EH);
