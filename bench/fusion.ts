@@ -3,8 +3,15 @@
  * they replace, in the same process and interleaved round by round, so the
  * ratio shares the machine's load: the reference step (bench/reference.ts)
  * and the default preset's own training step (its first arm, its batch shape
- * and step rule, the training graphs of its first seed). Both paths give the
- * same bits, so they train identically and only the time differs.
+ * and step rule, the training graphs of its first seed). Three paths:
+ * - fused: this engine, fused kernels on;
+ * - stock: this engine with the fused kernels off, the stock composition of
+ *   tfjs kernels, bit-identical to fused (so only time differs);
+ * - previous: engine 0.2.0's stock composition (bench/previous-network.ts:
+ *   the update's input term inside every step's product), the path that was
+ *   there before the fused kernels and the once-per-pass input term; the
+ *   targets compare against this one. Its rounding differs in the last bits,
+ *   its shapes and step counts do not.
  */
 import { initBackend } from '../src/engine/backend.ts';
 import { setFusedProcessEnabled } from '../src/engine/kernels-process.ts';
@@ -12,22 +19,28 @@ import { armModel, armTraining } from '../src/experiment/spec.ts';
 import { makeSeedData } from '../src/experiment/datasets.ts';
 import { featureTransforms } from '../src/experiment/run.ts';
 import { getTask } from '../src/tasks/registry.ts';
-import { MessagePassingNetwork } from '../src/model/network.ts';
 import { readPreset } from '../src/share/read-preset.ts';
 import { train } from '../src/train/trainer.ts';
 import { Rng } from '../src/util/rng.ts';
-import { createReferenceTrainer, profileStep, referenceInstances, timedTrainer, type ReferenceSize, type ReferenceTrainer } from './reference.ts';
+import { createReferenceTrainer, currentNetwork, profileStep, referenceInstances, timedTrainer, type NetworkFactory, type ReferenceSize, type ReferenceTrainer } from './reference.ts';
+import { PreviousEngineNetwork } from './previous-network.ts';
+
+type Path = 'fused' | 'stock' | 'previous';
+const PATHS: readonly Path[] = ['fused', 'stock', 'previous'];
+const previousNetwork: NetworkFactory = (...args) => new PreviousEngineNetwork(...args);
 
 export interface FusionWorkload {
   name: 'reference' | 'default-preset';
   description: string;
   /** Training steps per second on each path (all rounds pooled). */
-  stepsPerSecond: { fused: number; previous: number };
-  /** fused / previous. */
+  stepsPerSecond: Record<Path, number>;
+  /** fused / previous (the targets' ratio). */
   speedup: number;
+  /** fused / stock: what fusing alone gives, same engine and bits. */
+  speedupOverStock: number;
   /** Backend kernel launches per training step on each path (tf.profile, custom-gradient wrappers excluded). */
-  launches: { fused: number; previous: number };
-  rounds: { fused: number[]; previous: number[] };
+  launches: Record<Path, number>;
+  rounds: Record<Path, number[]>;
 }
 
 export interface FusionReport {
@@ -36,7 +49,7 @@ export interface FusionReport {
 }
 
 /** A trainer for the target preset's first arm on its first seed's training graphs, shaped like the reference trainer. */
-async function presetTrainer(presetPath: string): Promise<{ trainer: ReferenceTrainer; description: string }> {
+async function presetTrainer(presetPath: string, makeNetwork: NetworkFactory): Promise<{ trainer: ReferenceTrainer; description: string }> {
   await initBackend('wasm');
   const { spec } = await readPreset(presetPath);
   const presetFile = presetPath.slice(presetPath.lastIndexOf('/') + 1);
@@ -46,7 +59,7 @@ async function presetTrainer(presetPath: string): Promise<{ trainer: ReferenceTr
   const transforms = featureTransforms(spec, 0, data.train);
   const training = armTraining(spec, 0);
   const root = new Rng(spec.seeds.base).fork('bench-model');
-  const network = new MessagePassingNetwork(model, task.nodeFeatureNames.length, task.edgeFeatureNames.length, root);
+  const network = makeNetwork(model, task.nodeFeatureNames.length, task.edgeFeatureNames.length, root);
   const budget = { ...spec.budget, steps: 1_000_000, validateEvery: 0 };
   let calls = 0;
   const run = (shouldStop: () => boolean) =>
@@ -76,40 +89,45 @@ async function presetTrainer(presetPath: string): Promise<{ trainer: ReferenceTr
 async function measure(
   name: FusionWorkload['name'],
   description: string,
-  trainer: ReferenceTrainer,
+  trainers: { current: ReferenceTrainer; previous: ReferenceTrainer },
   seconds: number,
   rounds: number,
   quick: boolean,
   log: (line: string) => void,
 ): Promise<FusionWorkload> {
-  const paths = [true, false] as const;
-  const launches = { fused: 0, previous: 0 };
-  for (const fused of paths) {
-    setFusedProcessEnabled(fused);
+  const select = (path: Path): ReferenceTrainer => {
+    setFusedProcessEnabled(path === 'fused');
+    return path === 'previous' ? trainers.previous : trainers.current;
+  };
+  const launches: Record<Path, number> = { fused: 0, stock: 0, previous: 0 };
+  for (const path of PATHS) {
+    const trainer = select(path);
     trainer.trainSteps(1); // warm-up
-    launches[fused ? 'fused' : 'previous'] = (await profileStep(trainer, quick ? 1 : 3)).launches;
+    launches[path] = (await profileStep(trainer, quick ? 1 : 3)).launches;
   }
-  const pooled = { fused: { steps: 0, seconds: 0 }, previous: { steps: 0, seconds: 0 } };
-  const perRound = { fused: [] as number[], previous: [] as number[] };
+  const pooled: Record<Path, { steps: number; seconds: number }> = { fused: { steps: 0, seconds: 0 }, stock: { steps: 0, seconds: 0 }, previous: { steps: 0, seconds: 0 } };
+  const perRound: Record<Path, number[]> = { fused: [], stock: [], previous: [] };
   const window = seconds / rounds;
   for (let round = 0; round < rounds; round++) {
-    for (const fused of round % 2 === 0 ? paths : [...paths].reverse()) {
-      setFusedProcessEnabled(fused);
-      const key = fused ? 'fused' : 'previous';
-      const { steps, seconds: s } = await trainer.trainFor(window);
-      pooled[key].steps += steps;
-      pooled[key].seconds += s;
-      perRound[key].push(steps / s);
-      log(`fusion: ${name} round ${round + 1}/${rounds} ${key}: ${(steps / s).toFixed(2)} steps/s`);
+    // Rotate the order so no path always runs first (or right after another).
+    const order = PATHS.map((_, i) => PATHS[(i + round) % PATHS.length]!);
+    for (const path of order) {
+      const { steps, seconds: s } = await select(path).trainFor(window);
+      pooled[path].steps += steps;
+      pooled[path].seconds += s;
+      perRound[path].push(steps / s);
+      log(`fusion: ${name} round ${round + 1}/${rounds} ${path}: ${(steps / s).toFixed(2)} steps/s`);
     }
   }
   setFusedProcessEnabled(true);
-  const rate = (k: 'fused' | 'previous') => pooled[k].steps / pooled[k].seconds;
+  const rate = (k: Path) => pooled[k].steps / pooled[k].seconds;
+  const stepsPerSecond = { fused: rate('fused'), stock: rate('stock'), previous: rate('previous') };
   return {
     name,
     description,
-    stepsPerSecond: { fused: rate('fused'), previous: rate('previous') },
-    speedup: rate('fused') / rate('previous'),
+    stepsPerSecond,
+    speedup: stepsPerSecond.fused / stepsPerSecond.previous,
+    speedupOverStock: stepsPerSecond.fused / stepsPerSecond.stock,
     launches,
     rounds: perRound,
   };
@@ -125,20 +143,28 @@ export async function measureFusion(
 ): Promise<FusionReport> {
   const workloads: FusionWorkload[] = [];
   try {
-    const reference = await createReferenceTrainer('wasm', 'max', referenceInstances(size.graphs), size.steps);
+    const instances = referenceInstances(size.graphs);
+    const reference = {
+      current: await createReferenceTrainer('wasm', 'max', instances, size.steps, currentNetwork),
+      previous: await createReferenceTrainer('wasm', 'max', instances, size.steps, previousNetwork),
+    };
     workloads.push(await measure('reference', `the reference step (max arm, ${size.graphs} graphs, ${size.steps} steps)`, reference, seconds, rounds, quick, log));
-    await reference.dispose();
-    const preset = await presetTrainer(presetPath);
-    workloads.push(await measure('default-preset', preset.description, preset.trainer, seconds, rounds, quick, log));
-    await preset.trainer.dispose();
+    await reference.current.dispose();
+    await reference.previous.dispose();
+    const preset = { current: await presetTrainer(presetPath, currentNetwork), previous: await presetTrainer(presetPath, previousNetwork) };
+    workloads.push(await measure('default-preset', preset.current.description, { current: preset.current.trainer, previous: preset.previous.trainer }, seconds, rounds, quick, log));
+    await preset.current.trainer.dispose();
+    await preset.previous.trainer.dispose();
   } finally {
     setFusedProcessEnabled(true);
   }
   return {
     workloads,
     note:
-      'previous = the stock composition of tfjs kernels (Farfield kernels included) that the fused process kernels replace; ' +
-      'both paths give bit-identical results (test/engine/process-kernel.test.ts), so they train the same network and only time differs. ' +
-      'Rounds alternate the order of the two paths.',
+      'fused = this engine with the fused process kernels; stock = the same engine with them off, the stock composition of tfjs kernels ' +
+      '(Farfield kernels included), bit-identical to fused (test/engine/process-kernel.test.ts); previous = engine 0.2.0\'s stock composition ' +
+      '(the update\'s input term inside every step\'s product), the path before the fused kernels and the once-per-pass input term, ' +
+      'which the targets compare against (its float32 rounding differs in the last bits; shapes and step counts are the same). ' +
+      'Rounds rotate the order of the three paths; all share the SIMD matmul, so a faster matmul speeds up every path.',
   };
 }

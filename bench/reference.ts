@@ -127,11 +127,17 @@ export interface ReferenceTrainer {
  * A reference trainer with its own network (variables live on the backend
  * active at creation, so each backend gets its own trainer).
  */
+/** How a trainer builds its network: this engine's by default; the fusion bench passes engine 0.2.0's composition too. */
+export type NetworkFactory = (...args: ConstructorParameters<typeof MessagePassingNetwork>) => MessagePassingNetwork;
+
+export const currentNetwork: NetworkFactory = (...args) => new MessagePassingNetwork(...args);
+
 export async function createReferenceTrainer(
   backend: BackendName,
   aggregator: AggregatorName,
   instances: readonly TaskInstance[],
   steps: number = REFERENCE.steps,
+  makeNetwork: NetworkFactory = currentNetwork,
 ): Promise<ReferenceTrainer> {
   await initBackend(backend);
   const model = modelSchema.parse({
@@ -141,7 +147,7 @@ export async function createReferenceTrainer(
   });
   const first = instances[0]!;
   const root = new Rng(REFERENCE.seed).fork('model');
-  let network = new MessagePassingNetwork(model, first.nodeInputs[0]!.length, first.edgeInputs[0]!.length, root);
+  let network = makeNetwork(model, first.nodeInputs[0]!.length, first.edgeInputs[0]!.length, root);
   let calls = 0;
   const budget = {
     steps: 100_000,
@@ -164,7 +170,7 @@ export async function createReferenceTrainer(
     if (outcome.status === 'diverged') {
       // Should not happen at this learning rate; start again from fresh weights so timing goes on.
       network.dispose();
-      network = new MessagePassingNetwork(model, first.nodeInputs[0]!.length, first.edgeInputs[0]!.length, root.fork(`restart:${calls}`));
+      network = makeNetwork(model, first.nodeInputs[0]!.length, first.edgeInputs[0]!.length, root.fork(`restart:${calls}`));
     }
     return outcome;
   };

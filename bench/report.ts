@@ -169,21 +169,21 @@ function fusionTargets(doc: Omit<BenchDocument, 'targets'>, quickNote: string | 
   return [
     target({
       id: 'fusedPresetStep',
-      description: "default preset's own training step, fused kernels over the previous path",
+      description: "default preset's own training step, fused kernels over the previous path (engine 0.2.0's stock composition)",
       value: preset?.speedup ?? null,
       threshold: 2.5,
       direction: 'atLeast',
       unit: 'x',
-      note: missing ?? quickNote,
+      note: missing ?? ([quickNote, preset ? `over this engine's stock path (same bits): ${preset.speedupOverStock.toFixed(2)}x` : null].filter(Boolean).join('; ') || undefined),
     }),
     target({
       id: 'fusedReferenceStep',
-      description: 'reference training step, fused kernels over the previous path',
+      description: 'reference training step, fused kernels over the previous path (engine 0.2.0\'s stock composition)',
       value: reference?.speedup ?? null,
       threshold: 1.6,
       direction: 'atLeast',
       unit: 'x',
-      note: missing ?? quickNote,
+      note: missing ?? ([quickNote, reference ? `over this engine's stock path (same bits): ${reference.speedupOverStock.toFixed(2)}x` : null].filter(Boolean).join('; ') || undefined),
     }),
     target({
       id: 'fusedLaunches',
@@ -192,7 +192,7 @@ function fusionTargets(doc: Omit<BenchDocument, 'targets'>, quickNote: string | 
       threshold: 300,
       direction: 'atMost',
       unit: '',
-      note: missing ?? (reference ? `previous path: ${Math.round(reference.launches.previous)}` : undefined),
+      note: missing ?? (reference ? `previous path: ${Math.round(reference.launches.previous)}; stock path: ${Math.round(reference.launches.stock)}` : undefined),
     }),
   ];
 }
@@ -293,11 +293,12 @@ export function renderReport(doc: BenchDocument): string {
   lines.push(`  limit: ${fl.limit}`);
   lines.push('');
   if (doc.fusion) {
-    lines.push('Fused process kernels against the previous path (same process, rounds interleaved; bit-identical results):');
+    lines.push('Fused process kernels against the previous path (engine 0.2.0\'s stock composition) and this engine\'s stock path (same bits), rounds interleaved:');
     for (const w of doc.fusion.workloads) {
       lines.push(
-        `  ${pad(w.name, 15)} ${f(w.stepsPerSecond.fused)} vs ${f(w.stepsPerSecond.previous)} steps/s -> ${f(w.speedup)}x; ` +
-          `launches per step ${thousands(w.launches.fused)} vs ${thousands(w.launches.previous)}`,
+        `  ${pad(w.name, 15)} fused ${f(w.stepsPerSecond.fused)}, stock ${f(w.stepsPerSecond.stock)}, previous ${f(w.stepsPerSecond.previous)} steps/s -> ` +
+          `${f(w.speedup)}x the previous path, ${f(w.speedupOverStock)}x stock; ` +
+          `launches per step ${thousands(w.launches.fused)} / ${thousands(w.launches.stock)} / ${thousands(w.launches.previous)}`,
       );
       lines.push(`  ${pad('', 15)} ${w.description}`);
     }

@@ -46,8 +46,10 @@ describe('farfield bench --quick --json', () => {
   it('times the fused process kernels against the previous path on the reference and the default preset step', () => {
     expect(doc.fusion?.workloads.map((w) => w.name)).toEqual(['reference', 'default-preset']);
     for (const w of doc.fusion!.workloads) {
-      expect(isPositive(w.stepsPerSecond.fused) && isPositive(w.stepsPerSecond.previous)).toBe(true);
+      expect(isPositive(w.stepsPerSecond.fused) && isPositive(w.stepsPerSecond.previous) && isPositive(w.stepsPerSecond.stock)).toBe(true);
       expect(w.speedup).toBeCloseTo(w.stepsPerSecond.fused / w.stepsPerSecond.previous, 6);
+      expect(w.speedupOverStock).toBeCloseTo(w.stepsPerSecond.fused / w.stepsPerSecond.stock, 6);
+      expect(w.launches.fused).toBeLessThan(w.launches.stock);
       expect(w.launches.fused).toBeLessThan(w.launches.previous);
     }
     expect(doc.targets.map((t) => t.id)).toEqual(expect.arrayContaining(['fusedPresetStep', 'fusedReferenceStep', 'fusedLaunches']));
