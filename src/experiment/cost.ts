@@ -3,10 +3,10 @@
  * cost model of one run, calibrated on two shipped presets timed by the bench
  * (`bench/presets.ts`) and written into their `expectation`:
  *
- *   quick-demo               20 runs, 2 workers: 8.0 s  → 0.80 worker-seconds per run
- *   shortest-path-max-vs-sum 20 runs, 2 workers: 86.5 s → 8.65 worker-seconds per run
+ *   quick-demo               20 runs, 2 workers: 8.2 s  → 0.82 worker-seconds per run
+ *   shortest-path-max-vs-sum 20 runs, 2 workers: 79.5 s → 7.95 worker-seconds per run
  *
- * (engine 0.3.0 with the fused process kernels, runs of 2026-12-03). A run costs
+ * (engine 0.3.0 with the fused process kernels, bench of 2026-12-03). A run costs
  * about (training steps × message-passing steps per batch) rounds of the
  * fused kernels, each a fixed part plus a part that grows with the batch's
  * rows × hidden width (the matmuls).
@@ -17,8 +17,8 @@
 import { armModel, type ExperimentSpec } from './spec.ts';
 
 /** Milliseconds per kernel round: fixed, and per (batch row × hidden unit). */
-const ROUND_MS = 0.1736;
-const ROW_UNIT_MS = 6.01e-5;
+const ROUND_MS = 0.1867;
+const ROW_UNIT_MS = 4.93e-5;
 
 /** Message-passing steps a training batch gets, on average, under an arm's step rule. */
 function trainingDepth(spec: ExperimentSpec, armIndex: number): number {
