@@ -186,7 +186,7 @@ function totalFloats(sizes: Record<string, number>): number {
 
 // ------------------------------------------------------ elementwise ----
 // Elementwise work runs on the SIMD module (src/engine/simd/kernels.wat: relu, leaky_relu, relu_grad,
-// leaky_grad, add, add_row, segment_sum, gather_rows, copy_block, neg, shift_div, mul_div_neg), each
+// leaky_grad, add, segment_sum, gather_rows, copy_block, neg, shift_div, mul_div_neg), each
 // with the stock kernel's rule; what is left here in JavaScript is copying, transposing the weights
 // once per launch, the smooth aggregators' node-sized steps, and the mean's division (one float32
 // division per value either way). F is a Float32Array over the heap; indices

@@ -669,16 +669,6 @@
       (local.set $out (i32.add (local.get $out) (i32.const 4)))
       (local.set $i (i32.add (local.get $i) (i32.const 1))) (br $l2))))
 
-  ;; out[r, c] = x[r, c] + b[c] (out may be x)
-  (func (export "add_row") (param $x i32) (param $b i32) (param $out i32) (param $rows i32) (param $cols i32)
-    (local $r i32)
-    (block $done (loop $l
-      (br_if $done (i32.ge_u (local.get $r) (local.get $rows)))
-      (call $add_exported (local.get $x) (local.get $b) (local.get $out) (local.get $cols))
-      (local.set $x (i32.add (local.get $x) (i32.shl (local.get $cols) (i32.const 2))))
-      (local.set $out (i32.add (local.get $out) (i32.shl (local.get $cols) (i32.const 2))))
-      (local.set $r (i32.add (local.get $r) (i32.const 1))) (br $l))))
-
   ;; out [S, H] = 0, then out[ids[e], :] += x[e, :] for edges in order (ScatterNd's segment sum)
   (func (export "segment_sum") (param $x i32) (param $ids i32) (param $out i32) (param $E i32) (param $H i32) (param $S i32)
     (local $e i32) (local $row i32) (local $rowBytes i32)

@@ -37,7 +37,6 @@ interface Exports {
   relu_grad(dy: number, x: number, out: number, n: number): void;
   leaky_grad(dy: number, x: number, out: number, n: number, alpha: number): void;
   add(a: number, b: number, out: number, n: number): void;
-  add_row(x: number, b: number, out: number, rows: number, cols: number): void;
   segment_sum(x: number, ids: number, out: number, E: number, H: number, S: number): void;
   gather_rows(x: number, ids: number, out: number, E: number, H: number): void;
   neg(x: number, out: number, n: number): void;
@@ -125,7 +124,6 @@ export interface RawSimd {
   /** out = a + b (float32; out may alias an input). */
   add(a: number, b: number, out: number, n: number): void;
   /** out[r, :] = x[r, :] + b. */
-  addRow(x: number, b: number, out: number, rows: number, cols: number): void;
   /** out [S, H] = 0, then rows of x added to rows ids[e] in edge order. */
   segmentSum(x: number, ids: number, out: number, E: number, H: number, S: number): void;
   /** out[e, :] = x[ids[e], :]. */
@@ -235,7 +233,6 @@ function bind(backend: BackendWasm, memory: WebAssembly.Memory, exports: Exports
     reluGrad: (dy, x, out, n) => exports.relu_grad(dy, x, out, n),
     leakyGrad: (dy, x, out, n, alpha) => exports.leaky_grad(dy, x, out, n, alpha),
     add: (a, b, out, n) => exports.add(a, b, out, n),
-    addRow: (x, b, out, rows, cols) => exports.add_row(x, b, out, rows, cols),
     segmentSum: (x, ids, out, E, H, S) => exports.segment_sum(x, ids, out, E, H, S),
     gatherRows: (x, ids, out, E, H) => exports.gather_rows(x, ids, out, E, H),
     neg: (x, out, n) => exports.neg(x, out, n),
