@@ -127,19 +127,10 @@ export class MessagePassingNetwork {
     if (bias) p.add('decode.b', [1], 'zeros');
   }
 
-  private dense(x: tf.Tensor2D, w: string, b: string | null, activation: 'linear' | 'act' = 'linear'): tf.Tensor2D {
+  /** x·W (+ b) as one fused matmul (the bias rides in; the kernel sums each output from it). */
+  private dense(x: tf.Tensor2D, w: string, b: string | null): tf.Tensor2D {
     const bias = b && this.params.has(b) ? this.params.get(b) : undefined;
-    return this.affine(x, this.params.get(w) as tf.Tensor2D, bias, activation);
-  }
-
-  /**
-   * x·W (+ b), optionally activated. tfjs can differentiate a fused matmul only
-   * with linear or relu activation, so leaky-relu is applied as a separate op.
-   */
-  private affine(x: tf.Tensor2D, w: tf.Tensor2D, bias: tf.Tensor | undefined, activation: 'linear' | 'act'): tf.Tensor2D {
-    const fuseRelu = activation === 'act' && this.options.activation === 'relu';
-    const y = tf.fused.matMul({ a: x, b: w, bias, activation: fuseRelu ? 'relu' : 'linear' }) as tf.Tensor2D;
-    return activation === 'act' && !fuseRelu ? (tf.leakyRelu(y, LEAKY_ALPHA) as tf.Tensor2D) : y;
+    return tf.fused.matMul({ a: x, b: this.params.get(w) as tf.Tensor2D, bias }) as tf.Tensor2D;
   }
 
   private activate(x: tf.Tensor2D): tf.Tensor2D {
