@@ -28,7 +28,7 @@
 import * as tf from '@tensorflow/tfjs-core';
 import { MESSAGES_BY_NAME, STEP_RULES_BY_NAME, TRANSFORMS_BY_NAME, UPDATES_BY_NAME, aggregatorRecord, type AggregatorName } from '../model/catalogue.ts';
 import { mean } from '../experiment/statistics.ts';
-import type { MessagePassingNetwork, NetworkInputs } from '../model/network.ts';
+import type { MessagePassingNetwork, NetworkInputs, StepConstants } from '../model/network.ts';
 import { getAggregator, type Aggregator } from '../model/aggregators.ts';
 import { gatherRows } from '../model/ops.ts';
 import { makeBatch, type FeatureTransforms } from '../train/batch.ts';
@@ -382,7 +382,8 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
   try {
     // ---- one forward pass, every state recorded through onStep: the states the update checks use
     const recorded = tf.tidy(() => forwardStates(network, tensors, plan.steps, plan.stopTolerance));
-    held.push(recorded.edgeTerm, recorded.prediction, ...recorded.states);
+    held.push(recorded.edgeTerm, recorded.prediction, ...recorded.states, ...(recorded.inputTerm ? [recorded.inputTerm] : []));
+    const constants: StepConstants = { encoded: recorded.encoded, inputTerm: recorded.inputTerm ?? null };
     const evaluated = predict(network, insts, transforms, { chunk: insts.length });
     const flat = new Float32Array(n);
     let offset = 0;
@@ -420,15 +421,14 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
       const idsB = Int32Array.from(split.reduce<number[]>((acc, s, e) => (!s ? (acc.push(e), acc) : acc), []));
       const result = tf.tidy(() => {
         const h = recorded.states[t]!;
-        const x = network.stepConstants(recorded.encoded);
         // Neutral message: the aggregator's neutral element for the "aggregate" update (combine must then leave h alone);
         // 0 with the real hasIncoming for MLP / gated updates (what a node without incoming messages gets every step).
         let neutralOut: tf.Tensor2D;
         if (o.update === 'aggregate') {
           const e = tf.fill([n, H], neutral ?? 0) as tf.Tensor2D;
-          neutralOut = network.update(h, e, x, tf.tensor2d(hasAll, [n, 1]));
+          neutralOut = network.update(h, e, constants, tf.tensor2d(hasAll, [n, 1]));
         } else {
-          neutralOut = network.update(h, tf.zeros([n, H]) as tf.Tensor2D, x, tf.tensor2d(incoming, [n, 1]));
+          neutralOut = network.update(h, tf.zeros([n, H]) as tf.Tensor2D, constants, tf.tensor2d(incoming, [n, 1]));
         }
         // Monoid action: deliver the two halves of each node's messages one after another vs their combine at once.
         const m = network.message(h, recorded.edgeTerm, tensors);
@@ -441,8 +441,8 @@ export function auditNetwork(network: MessagePassingNetwork, transforms: Feature
         const hasBT = tf.tensor2d(hasB, [n, 1]);
         const a = part(idsA, hasA);
         const b = part(idsB, hasB);
-        const stepwise = network.update(network.update(h, a, x, hasAT), b, x, hasBT);
-        const atOnce = network.update(h, agg.combine(a, b, tau), x, tf.maximum(hasAT, hasBT) as tf.Tensor2D);
+        const stepwise = network.update(network.update(h, a, constants, hasAT), b, constants, hasBT);
+        const atOnce = network.update(h, agg.combine(a, b, tau), constants, tf.maximum(hasAT, hasBT) as tf.Tensor2D);
         return { h: readRows(h), neutralOut: readRows(neutralOut), stepwise: readRows(stepwise), atOnce: readRows(atOnce) };
       });
       neutralSamples.push(...rowResiduals(result.neutralOut, result.h, H));
@@ -612,7 +612,11 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
       const rng = options.rng.fork(s);
       const updates = new Int32Array(n);
       const deliveries = new Int32Array(E);
-      const fixed = tf.tidy(() => ({ encoded: tf.keep(network.encode(tensors.nodeX)), edgeTerm: tf.keep(network.edgeTerm(tensors.edgeX)) }));
+      const fixed = tf.tidy(() => {
+        const encoded = network.encode(tensors.nodeX);
+        return { encoded, edgeTerm: network.edgeTerm(tensors.edgeX), inputTerm: network.stepConstants(encoded).inputTerm ?? undefined };
+      });
+      const constants: StepConstants = { encoded: fixed.encoded, inputTerm: fixed.inputTerm ?? null };
       let h: tf.Tensor2D = fixed.encoded;
       const cap = 60 * Math.max(T, 1);
       let tick = 0;
@@ -651,7 +655,7 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
             } else {
               a = tf.zeros([n, o.hidden]) as tf.Tensor2D;
             }
-            const updated = network.update(current, a, network.stepConstants(fixed.encoded), hasT);
+            const updated = network.update(current, a, constants, hasT);
             const mask = tf.tensor2d(Uint8Array.from({ length: n * o.hidden }, (_, i) => selected[Math.floor(i / o.hidden)]!), [n, o.hidden], 'bool');
             return tf.where(mask, updated, current) as tf.Tensor2D;
           });
@@ -669,6 +673,7 @@ function asynchronousRows(network: MessagePassingNetwork, transforms: FeatureTra
         if (h !== fixed.encoded) h.dispose();
         fixed.encoded.dispose();
         fixed.edgeTerm.dispose();
+        fixed.inputTerm?.dispose();
       }
     }
     // Control: the synchronous run with as many steps as the average node got updates, vs T steps.

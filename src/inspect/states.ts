@@ -14,6 +14,8 @@ export type ForwardStates = {
   encoded: tf.Tensor2D;
   /** W_e ê (+ b) per edge, as the message function receives it. */
   edgeTerm: tf.Tensor2D;
+  /** The mlp update's input term x̂·W_x (+ b), as every step receives it; absent for the other updates. */
+  inputTerm?: tf.Tensor2D;
   /** Hidden states h⁰ (= encoded), h¹, …, hᵀ of the pass (T = stepsRun). */
   states: tf.Tensor2D[];
   /** The pass's own output, decode(hᵀ). */
@@ -23,17 +25,18 @@ export type ForwardStates = {
 
 /**
  * One `network.forward` pass with every hidden state recorded through its
- * `onStep` callback (each cloned, so it outlives the step). `encoded` and
- * `edgeTerm` are recomputed with the network's own `encode` and `edgeTerm`
+ * `onStep` callback (each cloned, so it outlives the step). `encoded`,
+ * `edgeTerm` and `inputTerm` are recomputed with the network's own methods
  * (the same ops on the same inputs as inside `forward`, so the same values).
  * Call inside `tf.tidy`; the returned tensors belong to the caller's scope.
  */
 export function forwardStates(network: MessagePassingNetwork, inputs: NetworkInputs, steps: number, stopTolerance?: number): ForwardStates {
   const encoded = network.encode(inputs.nodeX);
   const edgeTerm = network.edgeTerm(inputs.edgeX);
+  const inputTerm = network.stepConstants(encoded).inputTerm ?? undefined;
   const states: tf.Tensor2D[] = [encoded];
   const run = network.forward(inputs, { steps, stopTolerance, onStep: (_step, state) => states.push(tf.clone(state)) });
-  return { encoded, edgeTerm, states, prediction: run.prediction, stepsRun: run.stepsRun };
+  return { encoded, edgeTerm, inputTerm, states, prediction: run.prediction, stepsRun: run.stepsRun };
 }
 
 /** The step count and stop tolerance `predict` would use for a graph of `maxNodes` nodes. */
