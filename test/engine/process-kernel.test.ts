@@ -69,6 +69,14 @@ function differing(a: ArrayLike<number>, b: ArrayLike<number>): number {
   return n;
 }
 
+/** Loss, outputs and every gradient of the two paths equal bit for bit. */
+function expectSameBits(fused: Outcome, stock: Outcome): void {
+  expect(Object.is(fused.loss, stock.loss)).toBe(true);
+  expect(differing(fused.evaluated, stock.evaluated)).toBe(0);
+  expect(Object.keys(fused.grads).sort()).toEqual(Object.keys(stock.grads).sort());
+  for (const name of Object.keys(stock.grads)) expect([name, differing(fused.grads[name]!, stock.grads[name]!)]).toEqual([name, 0]);
+}
+
 /**
  * Train the same network from the same seeds on the fused path and on the stock path: the outcome
  * (loss curve, validation curve, kept step, status) and every weight must be equal, and the fused
@@ -116,10 +124,7 @@ function compareWays(model: Record<string, unknown>, data: TaskInstance[], steps
     const fused = lossAndGrads(network, batch, steps);
     setFusedProcessEnabled(false);
     const stock = lossAndGrads(network, batch, steps);
-    expect(Object.is(fused.loss, stock.loss)).toBe(true);
-    expect(differing(fused.evaluated, stock.evaluated)).toBe(0);
-    expect(Object.keys(fused.grads).sort()).toEqual(Object.keys(stock.grads).sort());
-    for (const name of Object.keys(stock.grads)) expect([name, differing(fused.grads[name]!, stock.grads[name]!)]).toEqual([name, 0]);
+    expectSameBits(fused, stock);
   } finally {
     setFusedProcessEnabled(true);
     batch.dispose();
@@ -197,10 +202,7 @@ function compareSemiring(model: Record<string, unknown>, data: TaskInstance[], s
     setFusedProcessEnabled(false);
     const stock = run(() => network.forward(batch, { steps }).prediction);
     const fused = run(() => semiringForward(network, batch, steps));
-    expect(differing(fused.evaluated, stock.evaluated)).toBe(0);
-    expect(Object.is(fused.loss, stock.loss)).toBe(true);
-    expect(Object.keys(fused.grads).sort()).toEqual(Object.keys(stock.grads).sort());
-    for (const name of Object.keys(stock.grads)) expect([name, differing(fused.grads[name]!, stock.grads[name]!)]).toEqual([name, 0]);
+    expectSameBits(fused, stock);
   } finally {
     setFusedProcessEnabled(true);
     batch.dispose();

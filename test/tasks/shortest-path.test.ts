@@ -4,22 +4,10 @@
  */
 import { describe, expect, it } from 'vitest';
 import Graph from 'graphology';
-import { dijkstra as graphologyDijkstra } from 'graphology-shortest-path';
 import { Rng } from '../../src/util/rng.ts';
 import { getFamily } from '../../src/graphs/registry.ts';
 import { bellmanFord, dijkstra, shortestPath } from '../../src/tasks/shortest-path.ts';
-
-/** Distance per node from graphology's Dijkstra: sum the weights along each returned path. */
-function referenceDistances(graph: Graph, source: number): number[] {
-  const paths = graphologyDijkstra.singleSource(graph, String(source));
-  return Array.from({ length: graph.order }, (_, i) => {
-    const p = paths[String(i)];
-    if (!p) return Infinity;
-    let d = 0;
-    for (let k = 1; k < p.length; k++) d += graph.getEdgeAttribute(graph.edge(p[k - 1]!, p[k]!)!, 'weight') as number;
-    return d;
-  });
-}
+import { graphologyDistances } from '../helpers.ts';
 
 describe('shortest-path against graphology-shortest-path', () => {
   for (const family of shortestPath.families) {
@@ -31,7 +19,7 @@ describe('shortest-path against graphology-shortest-path', () => {
         const inst = shortestPath.instance(graph, { rng: rng.fork(`t${k}`), weightScale: 1 });
         const source = inst.source!;
         // Reference: graphology-shortest-path 2.1 dijkstra.singleSource (common practice: Dijkstra is exact for non-negative weights).
-        const ref = referenceDistances(graph, source);
+        const ref = graphologyDistances(graph, source);
         const bf = bellmanFord(graph, source).distance;
         const dj = dijkstra(graph, source);
         for (let i = 0; i < graph.order; i++) {
@@ -109,7 +97,7 @@ describe('shortest-path: Sedgewick & Wayne tinyEWD', () => {
     expect(g.size).toBe(15);
     const bf = bellmanFord(g, 0).distance;
     const dj = dijkstra(g, 0);
-    const ref = referenceDistances(g, 0); // graphology-shortest-path 2.1
+    const ref = graphologyDistances(g, 0); // graphology-shortest-path 2.1
     for (let i = 0; i < 8; i++) {
       expect(bf[i]).toBeCloseTo(bookDistances[i]!, 10); // book value (from memory), printed to 2 decimals; sums are exact to 2 dp
       expect(dj[i]).toBeCloseTo(bookDistances[i]!, 10);
